@@ -1,0 +1,3 @@
+// Package thrustmap computes rated engine targets for simulated turbine
+// aircraft.
+package thrustmap

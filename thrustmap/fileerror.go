@@ -1,0 +1,113 @@
+package thrustmap
+
+import (
+	"errors"
+	"fmt"
+	"strings"
+
+	"github.com/pelletier/go-toml/v2"
+)
+
+// FileError is one fault in an input file, with its place: the file, the
+// line (0 when unknown) and the key path ("rating[2].values[3]"), modelled on
+// encoding/csv's ParseError.
+type FileError struct {
+	File string
+	Line int
+	Key  string
+	Err  error
+}
+
+// Error prints "FILE:LINE: KEY: message", leaving out what is unknown.
+func (e *FileError) Error() string {
+	var b strings.Builder
+	b.WriteString(e.File)
+	if e.Line > 0 {
+		fmt.Fprintf(&b, ":%d", e.Line)
+	}
+	if e.Key != "" {
+		b.WriteString(": ")
+		b.WriteString(e.Key)
+	}
+	b.WriteString(": ")
+	b.WriteString(e.Err.Error())
+	return b.String()
+}
+
+// Unwrap returns the underlying error.
+func (e *FileError) Unwrap() error { return e.Err }
+
+// FileErrors is every fault found in one file, in the order found.
+type FileErrors []*FileError
+
+// Error prints one fault a line.
+func (l FileErrors) Error() string {
+	lines := make([]string, len(l))
+	for i, e := range l {
+		lines[i] = e.Error()
+	}
+	return strings.Join(lines, "\n")
+}
+
+// Unwrap returns the faults, for errors.Is and errors.As.
+func (l FileErrors) Unwrap() []error {
+	errs := make([]error, len(l))
+	for i, e := range l {
+		errs[i] = e
+	}
+	return errs
+}
+
+// maxFileErrors caps how many faults one file reports, so a badly broken
+// file gives a readable list rather than thousands of lines.
+const maxFileErrors = 20
+
+// collector gathers the faults of one file with their lines.
+type collector struct {
+	file  string
+	lines keyLines
+	errs  FileErrors
+}
+
+// add records a fault at key path key.
+func (c *collector) add(key, format string, args ...any) {
+	if len(c.errs) >= maxFileErrors {
+		return
+	}
+	c.errs = append(c.errs, &FileError{File: c.file, Line: c.lines.line(key), Key: key, Err: fmt.Errorf(format, args...)})
+}
+
+// err returns the faults as an error, or nil.
+func (c *collector) err() error {
+	if len(c.errs) == 0 {
+		return nil
+	}
+	return c.errs
+}
+
+// tomlError converts an error from the TOML decoder into FileErrors with
+// lines: syntax errors, type mismatches and unknown keys.
+func tomlError(file string, err error) error {
+	var strict *toml.StrictMissingError
+	if errors.As(err, &strict) {
+		var out FileErrors
+		for i := range strict.Errors {
+			e := &strict.Errors[i]
+			line, _ := e.Position()
+			out = append(out, &FileError{File: file, Line: line, Key: strings.Join(e.Key(), "."),
+				Err: errors.New("unknown key (see the file format in the design brief, §4a)")})
+			if len(out) == maxFileErrors {
+				break
+			}
+		}
+		return out
+	}
+	var dec *toml.DecodeError
+	if errors.As(err, &dec) {
+		line, _ := dec.Position()
+		msg := strings.TrimPrefix(dec.Error(), "toml: ")
+		msg = strings.ReplaceAll(msg, "cannot decode TOML", "wrong type: got a TOML")
+		return FileErrors{{File: file, Line: line, Key: strings.Join(dec.Key(), "."), Err: errors.New(msg)}}
+	}
+	return FileErrors{{File: file, Err: err}}
+}

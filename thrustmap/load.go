@@ -1,0 +1,600 @@
+package thrustmap
+
+import (
+	"bytes"
+	"embed"
+	"fmt"
+	"math"
+	"os"
+	"path"
+	"slices"
+	"strings"
+
+	"github.com/pelletier/go-toml/v2"
+
+	"github.com/thrustmap/thrustmap/thrustmap/grid"
+)
+
+//go:embed profiles/*.toml
+var embedded embed.FS
+
+// EmbeddedPrefix starts the Source of an embedded profile.
+const EmbeddedPrefix = "embedded:"
+
+// EmbeddedProfiles returns the names of the profiles built into the program
+// ("demo", "demo-epr", "demo-turboprop").
+func EmbeddedProfiles() []string {
+	entries, _ := embedded.ReadDir("profiles")
+	var names []string
+	for _, e := range entries {
+		names = append(names, strings.TrimSuffix(e.Name(), ".toml"))
+	}
+	return names
+}
+
+// EmbeddedProfileText returns the TOML text of an embedded profile.
+func EmbeddedProfileText(name string) ([]byte, bool) {
+	b, err := embedded.ReadFile(path.Join("profiles", name+".toml"))
+	return b, err == nil
+}
+
+// LoadProfile reads a profile from a file, or selects an embedded one when
+// nameOrPath is an embedded profile's name (an argument that holds a "/" or
+// ends in ".toml" is always a path).
+func LoadProfile(nameOrPath string) (*Profile, error) {
+	if !strings.ContainsRune(nameOrPath, '/') && !strings.HasSuffix(nameOrPath, ".toml") {
+		if b, ok := EmbeddedProfileText(nameOrPath); ok {
+			return ParseProfile(EmbeddedPrefix+nameOrPath, b)
+		}
+	}
+	b, err := os.ReadFile(nameOrPath)
+	if err != nil {
+		if os.IsNotExist(err) && !strings.ContainsAny(nameOrPath, "/.") {
+			return nil, fmt.Errorf("profile %q: no such file and no embedded profile of that name (embedded: %s)", nameOrPath, strings.Join(EmbeddedProfiles(), ", "))
+		}
+		return nil, err
+	}
+	return ParseProfile(nameOrPath, b)
+}
+
+// profileFile mirrors the profile's TOML for strict decoding.
+type profileFile struct {
+	Schema      int              `toml:"schema"`
+	Name        string           `toml:"name"`
+	Description string           `toml:"description"`
+	Parameter   string           `toml:"parameter"`
+	Bleeds      []string         `toml:"bleeds"`
+	Engines     *int             `toml:"engines"`
+	Rating      []ratingFile     `toml:"rating"`
+	Correction  []correctionFile `toml:"correction"`
+	Assumed     *assumedFile     `toml:"assumed_temperature"`
+	Limits      *limitsFile      `toml:"limits"`
+	Lever       *leverFile       `toml:"lever"`
+	Gate        []gateFile       `toml:"gate"`
+}
+
+type ratingFile struct {
+	Name          string    `toml:"name"`
+	Description   string    `toml:"description"`
+	Temperature   string    `toml:"temperature"`
+	AltitudeFt    []float64 `toml:"altitude_ft"`
+	TemperatureC  []float64 `toml:"temperature_c"`
+	Mach          []float64 `toml:"mach"`
+	Values        any       `toml:"values"`
+	Interpolation string    `toml:"interpolation"`
+	ThrustKN      any       `toml:"thrust_kn"`
+	CornerISADevC *float64  `toml:"corner_isa_dev_c"`
+	CornerC       []float64 `toml:"corner_c"`
+}
+
+type correctionFile struct {
+	Rating        string    `toml:"rating"`
+	Bleed         string    `toml:"bleed"`
+	Delta         *float64  `toml:"delta"`
+	AltitudeFt    []float64 `toml:"altitude_ft"`
+	TemperatureC  []float64 `toml:"temperature_c"`
+	Mach          []float64 `toml:"mach"`
+	DeltaValues   any       `toml:"delta_values"`
+	Interpolation string    `toml:"interpolation"`
+}
+
+type assumedFile struct {
+	Rating          string   `toml:"rating"`
+	Ratings         []string `toml:"ratings"`
+	MaxC            *float64 `toml:"max_c"`
+	Method          string   `toml:"method"`
+	MaxReductionPct *float64 `toml:"max_reduction_pct"`
+}
+
+type limitsFile struct {
+	Max *float64 `toml:"max"`
+}
+
+type leverFile struct {
+	TLAMinDeg           *float64 `toml:"tla_min_deg"`
+	TLAMaxDeg           *float64 `toml:"tla_max_deg"`
+	IdleGate            string   `toml:"idle_gate"`
+	ReverseOnGroundOnly bool     `toml:"reverse_on_ground_only"`
+}
+
+type gateFile struct {
+	Name          string   `toml:"name"`
+	TLADeg        *float64 `toml:"tla_deg"`
+	CaptureDeg    float64  `toml:"capture_deg"`
+	HysteresisDeg float64  `toml:"hysteresis_deg"`
+	Rating        string   `toml:"rating"`
+	Target        string   `toml:"target"`
+	When          string   `toml:"when"`
+	Notch         bool     `toml:"notch"`
+}
+
+// ProfileSchema is the profile file format version this build reads.
+const ProfileSchema = 1
+
+// ParseProfile decodes and checks a profile's TOML text. file names the
+// source in errors and in Source. Every fault found is reported, each with
+// its line and key path, as FileErrors.
+func ParseProfile(file string, data []byte) (*Profile, error) {
+	var f profileFile
+	dec := toml.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&f); err != nil {
+		return nil, tomlError(file, err)
+	}
+	c := &collector{file: file, lines: indexKeyLines(data)}
+	p := buildProfile(c, &f)
+	if err := c.err(); err != nil {
+		return nil, err
+	}
+	p.source = file
+	return p, nil
+}
+
+// buildProfile checks the decoded file and builds the profile, recording
+// every fault in c.
+func buildProfile(c *collector, f *profileFile) *Profile {
+	p := &Profile{name: f.Name, description: f.Description, byName: map[string]*Rating{}, redline: math.Inf(1), engines: 1}
+	if f.Schema != ProfileSchema {
+		if !c.lines.has("schema") {
+			c.add("schema", "missing: want schema = %d", ProfileSchema)
+		} else {
+			c.add("schema", "is %d; this build reads schema %d", f.Schema, ProfileSchema)
+		}
+	}
+	param, err := ParseParameter(f.Parameter)
+	if err != nil {
+		c.add("parameter", "%v", err)
+	}
+	p.parameter = param
+	if f.Engines != nil {
+		if *f.Engines < 1 || *f.Engines > 16 {
+			c.add("engines", "is %d, want 1 to 16", *f.Engines)
+		} else {
+			p.engines = *f.Engines
+		}
+	}
+	if len(f.Bleeds) > MaxBleeds {
+		c.add("bleeds", "has %d names, at most %d are allowed", len(f.Bleeds), MaxBleeds)
+	}
+	for i, b := range f.Bleeds {
+		key := fmt.Sprintf("bleeds[%d]", i)
+		switch {
+		case b == "":
+			c.add(key, "is empty, want a name")
+		case slices.Index(f.Bleeds, b) < i:
+			c.add(key, "%q is declared twice", b)
+		}
+	}
+	p.bleeds = append([]string(nil), f.Bleeds...)
+
+	if len(f.Rating) == 0 {
+		c.add("rating", "no [[rating]] tables: a profile needs at least one rating")
+	}
+	for i := range f.Rating {
+		if r := buildRating(c, fmt.Sprintf("rating[%d]", i), &f.Rating[i], param); r != nil {
+			if _, dup := p.byName[r.name]; dup {
+				c.add(fmt.Sprintf("rating[%d].name", i), "rating %q is declared twice", r.name)
+				continue
+			}
+			p.ratings = append(p.ratings, r)
+			p.byName[r.name] = r
+		}
+	}
+	for i := range f.Correction {
+		buildCorrection(c, fmt.Sprintf("correction[%d]", i), &f.Correction[i], p)
+	}
+	if f.Assumed != nil {
+		p.assumed = buildAssumed(c, f.Assumed, p)
+	}
+	if f.Limits != nil && f.Limits.Max != nil {
+		lo, hi := param.Bounds()
+		if m := *f.Limits.Max; !(m > lo && m <= hi) {
+			c.add("limits.max", "is %g, want a %s redline above %g and at most %g", m, param, lo, hi)
+		} else {
+			p.redline = m
+		}
+	}
+	buildLever(c, f, p)
+	return p
+}
+
+// buildRating checks one [[rating]] table; it returns nil when the rating
+// cannot be built (the faults are in c).
+func buildRating(c *collector, key string, f *ratingFile, param Parameter) *Rating {
+	r := &Rating{name: f.Name, description: f.Description}
+	if f.Name == "" {
+		c.add(key+".name", "missing: every rating needs a name")
+	}
+	basis, err := ParseTemperatureBasis(f.Temperature)
+	if err != nil {
+		c.add(key+".temperature", "%v", err)
+	}
+	r.basis = basis
+	method, err := grid.ParseMethod(f.Interpolation)
+	if err != nil {
+		c.add(key+".interpolation", "%v", err)
+	}
+	axes := axesOf(c, key, f.AltitudeFt, f.TemperatureC, f.Mach)
+	if f.Values == nil {
+		c.add(key+".values", "missing: every rating needs values")
+		return nil
+	}
+	lo, hi := param.Bounds()
+	table := gridOf(c, key, "values", f.Values, axes, method, func(v float64) string {
+		if v < lo || v > hi {
+			return fmt.Sprintf("%g is outside the physical range of %s (%g to %g)", v, param, lo, hi)
+		}
+		return ""
+	})
+	if f.ThrustKN != nil {
+		r.thrust = gridOf(c, key, "thrust_kn", f.ThrustKN, axes, method, func(v float64) string {
+			if v < 0 {
+				return fmt.Sprintf("%g kN is negative", v)
+			}
+			return ""
+		})
+	}
+	switch {
+	case f.CornerISADevC != nil && f.CornerC != nil:
+		c.add(key+".corner_c", "give corner_isa_dev_c or corner_c, not both")
+	case f.CornerISADevC != nil:
+		d := *f.CornerISADevC
+		if math.IsNaN(d) || d < -60 || d > 60 {
+			c.add(key+".corner_isa_dev_c", "is %g, want an ISA deviation from -60 to 60 °C", d)
+		}
+		r.corner = corner{kind: cornerISADev, isaDev: d}
+	case f.CornerC != nil:
+		switch {
+		case axes[grid.Altitude] == nil:
+			c.add(key+".corner_c", "needs an altitude_ft axis (one corner per altitude row); use corner_isa_dev_c for a table without one")
+		case len(f.CornerC) != len(axes[grid.Altitude]):
+			c.add(key+".corner_c", "has %d temperatures, want %d (one per altitude_ft row)", len(f.CornerC), len(axes[grid.Altitude]))
+		default:
+			for i, t := range f.CornerC {
+				if math.IsNaN(t) || t < -90 || t > 90 {
+					c.add(fmt.Sprintf("%s.corner_c[%d]", key, i), "is %g, want an OAT from -90 to 90 °C", t)
+				}
+			}
+			r.corner = corner{kind: cornerPerAltitude, alts: axes[grid.Altitude], oats: append([]float64(nil), f.CornerC...)}
+		}
+	}
+	if table == nil {
+		return nil
+	}
+	r.table = table
+	r.needsISA = basis == ISADev
+	return r
+}
+
+// axesOf checks the three axis keys of a table and returns them (nil for an
+// absent axis).
+func axesOf(c *collector, key string, alt, temp, mach []float64) [grid.NumAxes][]float64 {
+	axes := [grid.NumAxes][]float64{alt, temp, mach}
+	names := [grid.NumAxes]string{"altitude_ft", "temperature_c", "mach"}
+	for a, xs := range axes {
+		k := key + "." + names[a]
+		if xs == nil && !c.lines.has(k) {
+			continue
+		}
+		bad := false
+		if len(xs) < 2 {
+			c.add(k, "has %d point(s), want at least 2 (leave the key out for a table without this axis)", len(xs))
+			bad = true
+		}
+		for i, x := range xs {
+			switch {
+			case math.IsNaN(x) || math.IsInf(x, 0):
+				c.add(fmt.Sprintf("%s[%d]", k, i), "is not a finite number")
+				bad = true
+			case i > 0 && !(x > xs[i-1]):
+				c.add(fmt.Sprintf("%s[%d]", k, i), "is %g, not above the point before it (%g): an axis must be strictly increasing", x, xs[i-1])
+				bad = true
+			}
+		}
+		if a == int(grid.Mach) && !bad && (xs[0] < 0 || xs[len(xs)-1] > 5) {
+			c.add(k, "runs from %g to %g, want Mach numbers from 0 to 5", xs[0], xs[len(xs)-1])
+			bad = true
+		}
+		if bad {
+			axes[a] = []float64{} // present but unusable: the grid is not built
+		}
+	}
+	return axes
+}
+
+// gridOf flattens a nested TOML array (one dimension per present axis, in
+// axis order) and builds its grid; check names a value outside its bounds.
+func gridOf(c *collector, key, field string, raw any, axes [grid.NumAxes][]float64, method grid.Method, check func(float64) string) *grid.Grid {
+	var shape []int
+	var names []string
+	usable := true
+	for a, xs := range axes {
+		if xs == nil {
+			continue
+		}
+		if len(xs) < 2 {
+			usable = false
+		}
+		shape = append(shape, len(xs))
+		names = append(names, [...]string{"altitude_ft", "temperature_c", "mach"}[a])
+	}
+	if !usable {
+		return nil
+	}
+	var flat []float64
+	before := len(c.errs)
+	flatten(c, key+"."+field, raw, shape, names, &flat, check)
+	if len(c.errs) > before {
+		return nil
+	}
+	g, err := grid.New(axes, flat, method)
+	if err != nil {
+		c.add(key+"."+field, "%v", err) // unreachable after the checks above
+		return nil
+	}
+	return g
+}
+
+// flatten appends the numbers of a nested array of the given shape to flat,
+// recording misshapen rows and bad numbers with their index paths.
+func flatten(c *collector, key string, v any, shape []int, names []string, flat *[]float64, check func(float64) string) {
+	if len(shape) == 0 {
+		x, ok := number(v)
+		switch {
+		case !ok:
+			c.add(key, "is %s, want a number", typeName(v))
+		case math.IsNaN(x) || math.IsInf(x, 0):
+			c.add(key, "is not a finite number")
+		default:
+			if msg := check(x); msg != "" {
+				c.add(key, "%s", msg)
+			}
+		}
+		*flat = append(*flat, x)
+		return
+	}
+	list, ok := v.([]any)
+	if !ok {
+		c.add(key, "is %s, want an array of %d entries (one per %s point)", typeName(v), shape[0], names[0])
+		return
+	}
+	if len(list) != shape[0] {
+		c.add(key, "has %d entries, want %d (one per %s point)", len(list), shape[0], names[0])
+		return
+	}
+	for i, e := range list {
+		flatten(c, fmt.Sprintf("%s[%d]", key, i), e, shape[1:], names[1:], flat, check)
+	}
+}
+
+func number(v any) (float64, bool) {
+	switch x := v.(type) {
+	case float64:
+		return x, true
+	case int64:
+		return float64(x), true
+	}
+	return 0, false
+}
+
+func typeName(v any) string {
+	switch v.(type) {
+	case []any:
+		return "an array"
+	case string:
+		return "a string"
+	case bool:
+		return "a boolean"
+	case map[string]any:
+		return "a table"
+	}
+	return fmt.Sprintf("a %T", v)
+}
+
+// buildCorrection checks one [[correction]] and attaches it to its rating.
+func buildCorrection(c *collector, key string, f *correctionFile, p *Profile) {
+	r, ok := p.byName[f.Rating]
+	if !ok {
+		c.add(key+".rating", "names rating %q, which the profile does not declare (ratings: %s)", f.Rating, listOrNone(ratingNames(p)))
+	}
+	bleed := p.bleedIndex(f.Bleed)
+	if bleed < 0 {
+		c.add(key+".bleed", "names bleed %q, which the profile does not declare (bleeds: %s)", f.Bleed, listOrNone(p.bleeds))
+	}
+	corr := Correction{Bleed: bleed}
+	switch {
+	case f.Delta != nil && f.DeltaValues != nil:
+		c.add(key+".delta_values", "give delta or delta_values, not both")
+		return
+	case f.Delta != nil:
+		if d := *f.Delta; math.IsNaN(d) || math.IsInf(d, 0) {
+			c.add(key+".delta", "is not a finite number")
+			return
+		}
+		corr.Delta = *f.Delta
+		if f.AltitudeFt != nil || f.TemperatureC != nil || f.Mach != nil {
+			c.add(key, "axes are for delta_values; a constant delta takes none")
+		}
+	case f.DeltaValues != nil:
+		method, err := grid.ParseMethod(f.Interpolation)
+		if err != nil {
+			c.add(key+".interpolation", "%v", err)
+		}
+		axes := axesOf(c, key, f.AltitudeFt, f.TemperatureC, f.Mach)
+		corr.Grid = gridOf(c, key, "delta_values", f.DeltaValues, axes, method, func(float64) string { return "" })
+		if corr.Grid == nil {
+			return
+		}
+	default:
+		c.add(key, "needs delta (a constant) or delta_values (a grid)")
+		return
+	}
+	if !ok || bleed < 0 {
+		return
+	}
+	for _, other := range r.corrections {
+		if other.Bleed == bleed {
+			c.add(key, "rating %q already has a correction for bleed %q", f.Rating, f.Bleed)
+			return
+		}
+	}
+	r.corrections = append(r.corrections, corr)
+}
+
+func ratingNames(p *Profile) []string {
+	names := make([]string, len(p.ratings))
+	for i, r := range p.ratings {
+		names[i] = r.name
+	}
+	return names
+}
+
+// buildAssumed checks [assumed_temperature].
+func buildAssumed(c *collector, f *assumedFile, p *Profile) *AssumedTemperature {
+	const key = "assumed_temperature"
+	a := &AssumedTemperature{Corrected: true, MaxReductionPct: 25}
+	switch {
+	case f.Rating != "" && f.Ratings != nil:
+		c.add(key+".ratings", "give rating or ratings, not both")
+	case f.Rating != "":
+		a.Ratings = []string{f.Rating}
+	case len(f.Ratings) > 0:
+		a.Ratings = append([]string(nil), f.Ratings...)
+	default:
+		c.add(key, "needs rating = \"NAME\" or ratings = [...]")
+	}
+	for i, name := range a.Ratings {
+		k := key + ".rating"
+		if f.Ratings != nil {
+			k = fmt.Sprintf("%s.ratings[%d]", key, i)
+		}
+		r, ok := p.byName[name]
+		switch {
+		case !ok:
+			c.add(k, "names rating %q, which the profile does not declare (ratings: %s)", name, listOrNone(ratingNames(p)))
+		case !r.table.Has(grid.Temperature):
+			c.add(k, "rating %q has no temperature axis, so an assumed temperature cannot change it", name)
+		case r.assumed:
+			c.add(k, "rating %q is listed twice", name)
+		default:
+			r.assumed = true
+		}
+	}
+	if f.MaxC == nil {
+		c.add(key, "needs max_c, the highest assumed temperature in °C")
+	} else if m := *f.MaxC; math.IsNaN(m) || m < -60 || m > 100 {
+		c.add(key+".max_c", "is %g, want a temperature from -60 to 100 °C", m)
+	} else {
+		a.MaxC = m
+	}
+	switch f.Method {
+	case "", "corrected":
+	case "table":
+		a.Corrected = false
+	default:
+		c.add(key+".method", "is %q, want corrected or table", f.Method)
+	}
+	if f.MaxReductionPct != nil {
+		// Above 25 % is legal to load (a check in verify flags it against
+		// FAA AC 25-13), but it must be a percentage below 100.
+		if m := *f.MaxReductionPct; !(m > 0 && m < 100) {
+			c.add(key+".max_reduction_pct", "is %g, want a percentage above 0 and below 100 (25 per FAA AC 25-13)", m)
+		} else {
+			a.MaxReductionPct = m
+		}
+	}
+	return a
+}
+
+// buildLever checks [lever] and the [[gate]] tables: names, ratings or
+// targets, TLA order and the spacing rule of the gate layout.
+func buildLever(c *collector, f *profileFile, p *Profile) {
+	if f.Lever == nil {
+		if len(f.Gate) > 0 {
+			c.add("gate", "gates need a [lever] table with tla_min_deg and tla_max_deg")
+		}
+		return
+	}
+	l := f.Lever
+	switch {
+	case l.TLAMinDeg == nil:
+		c.add("lever", "needs tla_min_deg, the aft end stop in degrees")
+	case l.TLAMaxDeg == nil:
+		c.add("lever", "needs tla_max_deg, the forward end stop in degrees")
+	case !(*l.TLAMinDeg < *l.TLAMaxDeg) || math.IsInf(*l.TLAMinDeg, 0) || math.IsInf(*l.TLAMaxDeg, 0):
+		c.add("lever.tla_max_deg", "is %g, want finite end stops with tla_min_deg (%g) below tla_max_deg", *l.TLAMaxDeg, *l.TLAMinDeg)
+	default:
+		p.lever.TLAMinDeg, p.lever.TLAMaxDeg = *l.TLAMinDeg, *l.TLAMaxDeg
+	}
+	p.lever.IdleGate = l.IdleGate
+	p.lever.ReverseOnGroundOnly = l.ReverseOnGroundOnly
+	for i := range f.Gate {
+		g := &f.Gate[i]
+		key := fmt.Sprintf("gate[%d]", i)
+		gate := Gate{Name: g.Name, CaptureDeg: g.CaptureDeg, HysteresisDeg: g.HysteresisDeg,
+			Rating: g.Rating, Target: g.Target, When: g.When, Notch: g.Notch}
+		if g.Name == "" {
+			c.add(key+".name", "missing: every gate needs a name")
+		} else if slices.ContainsFunc(p.gates, func(o Gate) bool { return o.Name == g.Name }) {
+			c.add(key+".name", "gate %q is declared twice", g.Name)
+		}
+		if g.TLADeg == nil {
+			c.add(key, "needs tla_deg, the gate's lever angle")
+			continue
+		}
+		gate.TLADeg = *g.TLADeg
+		if t := gate.TLADeg; !(t >= p.lever.TLAMinDeg && t <= p.lever.TLAMaxDeg) {
+			c.add(key+".tla_deg", "is %g, outside the lever's travel %g to %g", t, p.lever.TLAMinDeg, p.lever.TLAMaxDeg)
+		}
+		if !(g.CaptureDeg >= 0) || math.IsInf(g.CaptureDeg, 0) {
+			c.add(key+".capture_deg", "is %g, want a finite angle ≥ 0", g.CaptureDeg)
+		}
+		if !(g.HysteresisDeg >= 0) || math.IsInf(g.HysteresisDeg, 0) {
+			c.add(key+".hysteresis_deg", "is %g, want a finite angle ≥ 0", g.HysteresisDeg)
+		}
+		switch {
+		case g.Rating != "" && g.Target != "":
+			c.add(key+".target", "give rating or target, not both")
+		case g.Rating == "" && g.Target == "":
+			c.add(key, "needs rating = \"NAME\" or target = \"EXPRESSION\"")
+		case g.Rating != "":
+			if _, ok := p.byName[g.Rating]; !ok {
+				c.add(key+".rating", "names rating %q, which the profile does not declare (ratings: %s)", g.Rating, listOrNone(ratingNames(p)))
+			}
+		}
+		if n := len(p.gates); n > 0 {
+			lo := p.gates[n-1]
+			switch {
+			case !(gate.TLADeg > lo.TLADeg):
+				c.add(key+".tla_deg", "is %g, not above gate %q at %g: gates must be listed in increasing TLA", gate.TLADeg, lo.Name, lo.TLADeg)
+			case !(lo.TLADeg+lo.CaptureDeg+lo.HysteresisDeg < gate.TLADeg-gate.CaptureDeg):
+				c.add(key+".tla_deg", "gate %q (%g ± %g, hysteresis %g) is too close to gate %q (%g ± %g): need lo.tla + lo.capture + lo.hysteresis < hi.tla − hi.capture",
+					gate.Name, gate.TLADeg, gate.CaptureDeg, gate.HysteresisDeg, lo.Name, lo.TLADeg, lo.CaptureDeg)
+			}
+		}
+		p.gates = append(p.gates, gate)
+	}
+	if l.IdleGate != "" && !slices.ContainsFunc(p.gates, func(g Gate) bool { return g.Name == l.IdleGate }) {
+		c.add("lever.idle_gate", "names gate %q, which the profile does not declare", l.IdleGate)
+	}
+}

@@ -1,0 +1,258 @@
+package thrustmap
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/thrustmap/thrustmap/thrustmap/grid"
+)
+
+// Profile is one engine type's rating data, corrections, assumed-temperature
+// limits and lever gates. It is immutable once loaded and safe for concurrent
+// use by any number of goroutines.
+type Profile struct {
+	source      string
+	name        string
+	description string
+	parameter   Parameter
+	bleeds      []string
+	engines     int
+	ratings     []*Rating
+	byName      map[string]*Rating
+	assumed     *AssumedTemperature
+	redline     float64 // +Inf when none
+	lever       Lever
+	gates       []Gate
+}
+
+// Rating is one rating table (takeoff, climb, ...) with its optional thrust
+// grid, corner and bleed corrections.
+type Rating struct {
+	name        string
+	description string
+	basis       TemperatureBasis
+	table       *grid.Grid
+	thrust      *grid.Grid // nil when the rating has no thrust grid
+	corner      corner
+	corrections []Correction
+	assumed     bool // an [assumed_temperature] rating
+	needsISA    bool // the ISA temperature is needed for a look-up (ISA_DEV axis, corner)
+}
+
+// corner is a rating's flat-rating corner: none, one ISA deviation, or one
+// OAT per altitude row of the table.
+type corner struct {
+	kind   cornerKind
+	isaDev float64
+	alts   []float64 // the table's altitude axis for perAltitude
+	oats   []float64
+}
+
+type cornerKind int
+
+const (
+	noCorner cornerKind = iota
+	cornerISADev
+	cornerPerAltitude
+)
+
+// Correction is an amount added to a rating's value while a bleed flag is on:
+// a constant, or a grid over its own axes (same temperature basis as the
+// rating).
+type Correction struct {
+	Bleed int        // index into the profile's bleeds
+	Delta float64    // the constant amount when Grid is nil
+	Grid  *grid.Grid // a gridded amount, or nil
+}
+
+// AssumedTemperature holds the limits of reduced takeoff thrust by the
+// assumed-temperature method (FAA AC 25-13).
+type AssumedTemperature struct {
+	Ratings []string // the ratings that may be reduced
+	MaxC    float64  // the highest assumed temperature, °C
+	// Corrected is true for method "corrected": an N1 value is scaled by
+	// √(T_OAT/T_assumed) so the corrected speed equals that at the assumed
+	// temperature. Method "table" (false) takes the table value as is.
+	Corrected       bool
+	MaxReductionPct float64 // thrust reduction limit, percent (25 per AC 25-13)
+}
+
+// Lever holds a profile's lever travel and reverse settings.
+type Lever struct {
+	TLAMinDeg           float64 // the aft end stop
+	TLAMaxDeg           float64 // the forward end stop
+	IdleGate            string  // below this gate's TLA is the reverse range
+	ReverseOnGroundOnly bool    // hold idle and flag an interlock when reverse is selected in the air
+}
+
+// Gate is a detent position on the lever as declared in the profile.
+type Gate struct {
+	Name          string
+	TLADeg        float64
+	CaptureDeg    float64 // half-width of the zone that snaps to the gate
+	HysteresisDeg float64 // extra width needed to leave the zone once inside
+	Rating        string  // the rating commanded, or "" when Target is set
+	Target        string  // an expression for the command, or ""
+	When          string  // an expression; the gate is active while true ("" = always)
+	Notch         bool    // the physical lever has a notch here
+}
+
+// Source returns where the profile came from: a file path or "embedded:NAME".
+func (p *Profile) Source() string { return p.source }
+
+// Name returns the profile's free-text name.
+func (p *Profile) Name() string { return p.name }
+
+// Description returns the profile's free-text description.
+func (p *Profile) Description() string { return p.description }
+
+// Parameter returns the rated parameter.
+func (p *Profile) Parameter() Parameter { return p.parameter }
+
+// Engines returns the number of engines (levers) the profile is for.
+func (p *Profile) Engines() int { return p.engines }
+
+// Bleeds returns a copy of the bleed flag names; bit i of a Bleeds set is
+// Bleeds()[i].
+func (p *Profile) Bleeds() []string { return append([]string(nil), p.bleeds...) }
+
+// Ratings returns the ratings in file order.
+func (p *Profile) Ratings() []*Rating { return append([]*Rating(nil), p.ratings...) }
+
+// Rating returns the named rating.
+func (p *Profile) Rating(name string) (*Rating, bool) {
+	r, ok := p.byName[name]
+	return r, ok
+}
+
+// AssumedTemperature returns the assumed-temperature limits, or nil when the
+// profile has none.
+func (p *Profile) AssumedTemperature() *AssumedTemperature {
+	if p.assumed == nil {
+		return nil
+	}
+	a := *p.assumed
+	a.Ratings = append([]string(nil), a.Ratings...)
+	return &a
+}
+
+// Redline returns the [limits] max and true, or false when none is set.
+func (p *Profile) Redline() (float64, bool) {
+	return p.redline, !math.IsInf(p.redline, 1)
+}
+
+// Lever returns the lever settings (zero when the profile has no [lever]).
+func (p *Profile) Lever() Lever { return p.lever }
+
+// Gates returns a copy of the gates in TLA order.
+func (p *Profile) Gates() []Gate { return append([]Gate(nil), p.gates...) }
+
+// Bleeds is a set of bleed flags: bit i is the profile's bleeds[i].
+type Bleeds uint64
+
+// MaxBleeds is the most bleed flags a profile may declare.
+const MaxBleeds = 64
+
+// Has reports whether bleed i is on.
+func (b Bleeds) Has(i int) bool { return i >= 0 && i < MaxBleeds && b&(1<<uint(i)) != 0 }
+
+// BleedSet returns the set with the named bleeds on, or an error naming an
+// unknown one and listing the profile's.
+func (p *Profile) BleedSet(names ...string) (Bleeds, error) {
+	var set Bleeds
+	for _, n := range names {
+		i := p.bleedIndex(n)
+		if i < 0 {
+			return 0, fmt.Errorf("unknown bleed %q (the profile has %s)", n, listOrNone(p.bleeds))
+		}
+		set |= 1 << uint(i)
+	}
+	return set, nil
+}
+
+// BleedNames returns the names of the bleeds on in set.
+func (p *Profile) BleedNames(set Bleeds) []string {
+	names := []string{}
+	for i, n := range p.bleeds {
+		if set.Has(i) {
+			names = append(names, n)
+		}
+	}
+	return names
+}
+
+func (p *Profile) bleedIndex(name string) int {
+	for i, n := range p.bleeds {
+		if n == name {
+			return i
+		}
+	}
+	return -1
+}
+
+// Name returns the rating's name.
+func (r *Rating) Name() string { return r.name }
+
+// Description returns the rating's free-text description.
+func (r *Rating) Description() string { return r.description }
+
+// Basis returns what the rating's temperature axis means.
+func (r *Rating) Basis() TemperatureBasis { return r.basis }
+
+// Table returns the rating's value grid.
+func (r *Rating) Table() *grid.Grid { return r.table }
+
+// Thrust returns the rated-thrust grid in kN, or nil when the rating has none.
+func (r *Rating) Thrust() *grid.Grid { return r.thrust }
+
+// Corrections returns a copy of the rating's bleed corrections.
+func (r *Rating) Corrections() []Correction { return append([]Correction(nil), r.corrections...) }
+
+// Assumed reports whether the rating may be reduced by the assumed-temperature
+// method.
+func (r *Rating) Assumed() bool { return r.assumed }
+
+// CornerOAT returns the rating's corner (flat-rating kink) as an OAT at a
+// pressure altitude, and false when the rating declares no corner. A
+// per-altitude corner is interpolated linearly between rows and held beyond
+// the first and last row.
+func (r *Rating) CornerOAT(altFt, isaTempC float64) (float64, bool) {
+	switch r.corner.kind {
+	case cornerISADev:
+		return isaTempC + r.corner.isaDev, true
+	case cornerPerAltitude:
+		return interp1(r.corner.alts, r.corner.oats, altFt), true
+	}
+	return 0, false
+}
+
+// interp1 is linear interpolation in (xs, ys) held at the ends.
+func interp1(xs, ys []float64, x float64) float64 {
+	n := len(xs)
+	if x <= xs[0] {
+		return ys[0]
+	}
+	if x >= xs[n-1] {
+		return ys[n-1]
+	}
+	i := 0
+	for i < n-2 && xs[i+1] <= x {
+		i++
+	}
+	f := (x - xs[i]) / (xs[i+1] - xs[i])
+	return ys[i]*(1-f) + ys[i+1]*f
+}
+
+func listOrNone(names []string) string {
+	if len(names) == 0 {
+		return "none"
+	}
+	s := ""
+	for i, n := range names {
+		if i > 0 {
+			s += ", "
+		}
+		s += n
+	}
+	return s
+}
