@@ -105,9 +105,33 @@ func tomlError(file string, err error) error {
 	var dec *toml.DecodeError
 	if errors.As(err, &dec) {
 		line, _ := dec.Position()
-		msg := strings.TrimPrefix(dec.Error(), "toml: ")
-		msg = strings.ReplaceAll(msg, "cannot decode TOML", "wrong type: got a TOML")
-		return FileErrors{{File: file, Line: line, Key: strings.Join(dec.Key(), "."), Err: errors.New(msg)}}
+		return FileErrors{{File: file, Line: line, Key: strings.Join(dec.Key(), "."), Err: errors.New(decodeMessage(dec.Error()))}}
 	}
 	return FileErrors{{File: file, Err: err}}
+}
+
+// decodeMessage rewrites the decoder's type-mismatch message
+// ("toml: cannot decode TOML string into struct field x.y of type float64")
+// in the file's terms ("wrong type: got a string, want a number").
+func decodeMessage(msg string) string {
+	msg = strings.TrimPrefix(msg, "toml: ")
+	const head = "cannot decode TOML "
+	if !strings.HasPrefix(msg, head) {
+		return msg
+	}
+	got, goType, _ := strings.Cut(strings.TrimPrefix(msg, head), " ")
+	if i := strings.LastIndex(msg, " of type "); i >= 0 {
+		goType = msg[i+len(" of type "):]
+	} else if i := strings.LastIndex(msg, " into "); i >= 0 {
+		goType = msg[i+len(" into "):]
+	}
+	want := map[string]string{
+		"float64": "a number", "*float64": "a number", "int": "an integer", "*int": "an integer",
+		"string": "a string", "bool": "true or false", "[]float64": "an array of numbers",
+		"[]string": "an array of strings",
+	}[goType]
+	if want == "" {
+		want = "another type"
+	}
+	return "wrong type: got a " + got + ", want " + want
 }

@@ -40,11 +40,11 @@ type Reasons uint8
 
 // The reason codes.
 const (
-	TANotAboveOAT        Reasons = 1 << iota // Ta ≤ OAT: full rating
-	TABelowCorner                            // Ta ≤ corner: rated thrust is flat, full rating
-	TAAboveMax                               // Ta above max_c: Ta = max_c
-	ReductionLimited                         // the thrust reduction limit lowered Ta
-	ReductionNotChecked                      // no thrust grid: the limit could not be checked
+	TANotAboveOAT       Reasons = 1 << iota // Ta ≤ OAT: full rating
+	TABelowCorner                           // Ta ≤ corner: rated thrust is flat, full rating
+	TAAboveMax                              // Ta above max_c: Ta = max_c
+	ReductionLimited                        // the thrust reduction limit lowered Ta
+	ReductionNotChecked                     // no thrust grid: the limit could not be checked
 )
 
 var reasonNames = []string{"ta_not_above_oat", "ta_below_corner", "ta_above_max", "reduction_limited", "reduction_not_checked"}
