@@ -2,6 +2,16 @@ module github.com/thrustmap/thrustmap
 
 go 1.26
 
-require gonum.org/v1/gonum v0.17.0
+require (
+	github.com/pelletier/go-toml/v2 v2.4.3
+	github.com/rogpeppe/go-internal v1.16.0
+	github.com/spf13/cobra v1.10.2
+	github.com/spf13/pflag v1.0.9
+	gonum.org/v1/gonum v0.17.0
+)
 
-require github.com/pelletier/go-toml/v2 v2.4.3 // indirect
+require (
+	github.com/inconshreveable/mousetrap v1.1.0 // indirect
+	golang.org/x/sys v0.30.0 // indirect
+	golang.org/x/tools v0.30.0 // indirect
+)

@@ -1,0 +1,208 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+	"text/tabwriter"
+
+	"github.com/spf13/cobra"
+
+	"github.com/thrustmap/thrustmap/thrustmap"
+	"github.com/thrustmap/thrustmap/thrustmap/atmos"
+	"github.com/thrustmap/thrustmap/thrustmap/atomicfile"
+	"github.com/thrustmap/thrustmap/thrustmap/grid"
+)
+
+// The demo scenario: a departure from an invented hot, high field, then
+// cruise. All numbers are made up for the demonstration.
+var demoScenario = struct {
+	fieldName        string
+	elevFt, qnhHPa   float64
+	oatC             float64
+	cruiseAltFt      float64
+	cruiseISADev     float64
+	cruiseMach       float64
+	assumedSweep     []float64
+	departureBleeds  []string
+	departureClimbMa float64
+}{
+	fieldName: "an invented hot and high field", elevFt: 5400, qnhHPa: 1008, oatC: 31,
+	cruiseAltFt: 35000, cruiseISADev: 10, cruiseMach: 0.78,
+	assumedSweep:     []float64{30, 40, 45, 50, 55, 60, 70},
+	departureBleeds:  []string{"engine-anti-ice"},
+	departureClimbMa: 0.3,
+}
+
+// demoResults is what demo --out writes as JSON.
+type demoResults struct {
+	Field    airDataJSON          `json:"field"`
+	Profiles []demoProfileResults `json:"profiles"`
+	Safety   string               `json:"safety"`
+}
+
+type demoProfileResults struct {
+	Profile string       `json:"profile"`
+	Name    string       `json:"name"`
+	Field   []targetJSON `json:"field_targets"`
+	Assumed []targetJSON `json:"assumed_temperature_sweep,omitempty"`
+	Cruise  []targetJSON `json:"cruise_targets"`
+}
+
+func newDemoCmd() *cobra.Command {
+	var out string
+	cmd := &cobra.Command{
+		Use:   "demo [--out DIR]",
+		Short: "Run the whole chain on the embedded demo profiles",
+		Long: `demo runs thrustmap on its embedded, invented demo profiles: air data at a
+field from elevation and QNH, every rating's target at the field, reduced
+takeoff thrust over a range of assumed temperatures, and targets in cruise.
+With --out DIR it also writes report.txt and results.json there.
+
+` + safetyNote,
+		Args: cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, _ []string) error {
+			var report bytes.Buffer
+			results, err := runDemo(&report)
+			if err != nil {
+				return err
+			}
+			if _, err := cmd.OutOrStdout().Write(report.Bytes()); err != nil {
+				return err
+			}
+			if out == "" {
+				return nil
+			}
+			if err := os.MkdirAll(out, 0o755); err != nil {
+				return err
+			}
+			var js bytes.Buffer
+			if err := writeJSON(&js, results); err != nil {
+				return err
+			}
+			for name, data := range map[string][]byte{"report.txt": report.Bytes(), "results.json": js.Bytes()} {
+				if err := atomicfile.WriteFile(filepath.Join(out, name), data, 0o644, false); err != nil {
+					return err
+				}
+			}
+			fmt.Fprintf(cmd.OutOrStdout(), "\nwrote %s and %s\n", filepath.Join(out, "report.txt"), filepath.Join(out, "results.json"))
+			return nil
+		},
+	}
+	cmd.Flags().StringVar(&out, "out", "", "directory to write report.txt and results.json to")
+	return cmd
+}
+
+// runDemo writes the demo report to w and returns its results.
+func runDemo(w io.Writer) (demoResults, error) {
+	s := demoScenario
+	fmt.Fprintln(w, "thrustmap demo — invented aircraft, engines and field; simulation only")
+	fmt.Fprintln(w, strings.Repeat("=", 72))
+
+	fieldAlt, err := atmos.PressureAltitudeFromQNH(s.elevFt, s.qnhHPa)
+	if err != nil {
+		return demoResults{}, err
+	}
+	field, err := airData(air{altFt: fieldAlt, oatC: s.oatC, hasOAT: true, fromQNH: true, elevFt: s.elevFt, qnhHPa: s.qnhHPa})
+	if err != nil {
+		return demoResults{}, err
+	}
+	fmt.Fprintf(w, "\nDeparture from %s\n\n", s.fieldName)
+	printAirData(w, field)
+
+	cruiseISA, err := atmos.ISATemperatureC(s.cruiseAltFt)
+	if err != nil {
+		return demoResults{}, err
+	}
+	results := demoResults{Field: field, Safety: safetyNote}
+	for _, name := range []string{"demo", "demo-epr", "demo-turboprop"} {
+		p, err := thrustmap.LoadProfile(name)
+		if err != nil {
+			return results, err
+		}
+		pr := demoProfileResults{Profile: name, Name: p.Name()}
+		fmt.Fprintf(w, "\n%s\n%s (-p %s), rated in %s\n", strings.Repeat("-", 72), p.Name(), name, p.Parameter())
+
+		ground := thrustmap.Conditions{AltitudeFt: fieldAlt, OATC: s.oatC, OnGround: true}
+		fmt.Fprintf(w, "\nAt the field: %.0f ft pressure altitude, OAT %.0f °C, on the ground\n\n", fieldAlt, s.oatC)
+		pr.Field = demoTable(w, p, ground, s.departureBleeds, s.departureClimbMa)
+
+		if a := p.AssumedTemperature(); a != nil {
+			fmt.Fprintf(w, "\nReduced takeoff by the assumed-temperature method (%s, max %.0f °C, limit %.0f %% thrust)\n\n",
+				strings.Join(a.Ratings, ", "), a.MaxC, a.MaxReductionPct)
+			pr.Assumed = demoAssumed(w, p, a.Ratings[0], ground, s.assumedSweep)
+		}
+
+		cruise := thrustmap.Conditions{AltitudeFt: s.cruiseAltFt, OATC: cruiseISA + s.cruiseISADev, Mach: s.cruiseMach}
+		fmt.Fprintf(w, "\nIn cruise: FL%.0f, ISA%+.0f (OAT %.1f °C), Mach %.2f\n\n", s.cruiseAltFt/100, s.cruiseISADev, cruise.OATC, s.cruiseMach)
+		pr.Cruise = demoTable(w, p, cruise, nil, s.cruiseMach)
+		results.Profiles = append(results.Profiles, pr)
+	}
+	fmt.Fprintf(w, "\n%s\n%s\n", strings.Repeat("=", 72), safetyNote)
+	return results, nil
+}
+
+// demoTable prints every rating of p at c, with and without the given
+// bleeds; ratings with a Mach axis are taken at mach.
+func demoTable(w io.Writer, p *thrustmap.Profile, c thrustmap.Conditions, bleeds []string, mach float64) []targetJSON {
+	var out []targetJSON
+	withBleeds, err := p.BleedSet(bleeds...)
+	if err != nil {
+		withBleeds = 0 // the demo's bleed names are not in this profile
+		bleeds = nil
+	}
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	header := "rating\t" + p.Parameter().String() + "\t"
+	if len(bleeds) > 0 {
+		header += "with " + strings.Join(bleeds, ", ") + "\t"
+	}
+	fmt.Fprintln(tw, header+"clamped\tflags\t")
+	for _, r := range p.Ratings() {
+		rc := c
+		if r.Table().Has(grid.Mach) {
+			rc.Mach = mach
+		}
+		res, err := p.RatingTarget(r, rc)
+		if err != nil {
+			fmt.Fprintf(tw, "%s\terror: %v\t\n", r.Name(), err)
+			continue
+		}
+		out = append(out, newTargetJSON(p, res, rc))
+		line := fmt.Sprintf("%s\t%s\t", r.Name(), formatValue(res.Value, res.Unit()))
+		if len(bleeds) > 0 {
+			rc.Bleeds = withBleeds
+			bres, _ := p.RatingTarget(r, rc)
+			line += formatValue(bres.Value, bres.Unit()) + "\t"
+		}
+		fmt.Fprintf(tw, "%s%s\t%s\t\n", line, listOr(res.Clamped.Names(), "-"), listOr(res.Flags.Names(), "-"))
+	}
+	tw.Flush()
+	return out
+}
+
+// demoAssumed prints the reduced takeoff over a sweep of assumed temperatures.
+func demoAssumed(w io.Writer, p *thrustmap.Profile, rating string, c thrustmap.Conditions, sweep []float64) []targetJSON {
+	var out []targetJSON
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "assumed\teffective\t%s\tthrust\treasons\t\n", p.Parameter())
+	for _, ta := range sweep {
+		c.AssumedSet, c.AssumedC = true, ta
+		res, err := p.Target(rating, c)
+		if err != nil {
+			fmt.Fprintf(tw, "%.0f °C\terror: %v\t\n", ta, err)
+			continue
+		}
+		out = append(out, newTargetJSON(p, res, c))
+		r := res.Reduction
+		thrust := "not checked"
+		if r.ThrustChecked {
+			thrust = formatReduction(r.ThrustReductionPct)
+		}
+		fmt.Fprintf(tw, "%.0f °C\t%.1f °C\t%s\t%s\t%s\t\n", ta, r.EffectiveC, formatValue(res.Value, res.Unit()), thrust, listOr(r.Reasons.Names(), "-"))
+	}
+	tw.Flush()
+	return out
+}
