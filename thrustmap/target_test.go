@@ -371,3 +371,36 @@ func bench12x12TOML() string {
 	}
 	return s + "]\n"
 }
+
+// FuzzTarget: any conditions give a finite value or an ErrConditions error,
+// never NaN or a panic, on every rating of every embedded profile.
+func FuzzTarget(f *testing.F) {
+	f.Add(2000.0, 20.0, 0.0, 50.0, uint64(0), true)
+	f.Add(-20000.0, -300.0, 6.0, 1e9, ^uint64(0), true)
+	f.Add(41000.0, -56.5, 0.85, 0.0, uint64(5), false)
+	var profiles []*Profile
+	for _, name := range EmbeddedProfiles() {
+		p, err := LoadProfile(name)
+		if err != nil {
+			f.Fatal(err)
+		}
+		profiles = append(profiles, p)
+	}
+	f.Fuzz(func(t *testing.T, alt, oat, mach, ta float64, bleeds uint64, assumed bool) {
+		c := Conditions{AltitudeFt: alt, OATC: oat, Mach: mach, Bleeds: Bleeds(bleeds), AssumedSet: assumed, AssumedC: ta}
+		for _, p := range profiles {
+			for _, r := range p.Ratings() {
+				res, err := p.RatingTarget(r, c)
+				if err != nil {
+					if !errors.Is(err, ErrConditions) {
+						t.Fatalf("%s: unexpected error %v", r.Name(), err)
+					}
+					continue
+				}
+				if !finite(res.Value) || (res.Reduction.Evaluated && !finite(res.Reduction.EffectiveC)) {
+					t.Fatalf("%s at %+v: %+v", r.Name(), c, res)
+				}
+			}
+		}
+	})
+}
