@@ -20,21 +20,21 @@ import (
 // The demo scenario: a departure from an invented hot, high field, then
 // cruise. All numbers are made up for the demonstration.
 var demoScenario = struct {
-	fieldName        string
-	elevFt, qnhHPa   float64
-	oatC             float64
-	cruiseAltFt      float64
-	cruiseISADev     float64
-	cruiseMach       float64
-	assumedSweep     []float64
-	departureBleeds  []string
-	departureClimbMa float64
+	fieldName       string
+	elevFt, qnhHPa  float64
+	oatC            float64
+	cruiseAltFt     float64
+	cruiseISADev    float64
+	cruiseMach      float64
+	assumedSweep    []float64
+	departureBleeds []string
+	departureMach   float64
 }{
 	fieldName: "an invented hot and high field", elevFt: 5400, qnhHPa: 1008, oatC: 31,
 	cruiseAltFt: 35000, cruiseISADev: 10, cruiseMach: 0.78,
-	assumedSweep:     []float64{30, 40, 45, 50, 55, 60, 70},
-	departureBleeds:  []string{"engine-anti-ice"},
-	departureClimbMa: 0.3,
+	assumedSweep:    []float64{30, 40, 45, 50, 55, 60, 70},
+	departureBleeds: []string{"engine-anti-ice"},
+	departureMach:   0.3,
 }
 
 // demoResults is what demo --out writes as JSON.
@@ -128,7 +128,7 @@ func runDemo(w io.Writer) (demoResults, error) {
 
 		ground := thrustmap.Conditions{AltitudeFt: fieldAlt, OATC: s.oatC, OnGround: true}
 		fmt.Fprintf(w, "\nAt the field: %.0f ft pressure altitude, OAT %.0f °C, on the ground\n\n", fieldAlt, s.oatC)
-		pr.Field = demoTable(w, p, ground, s.departureBleeds, s.departureClimbMa)
+		pr.Field = demoTable(w, p, ground, s.departureBleeds, s.departureMach)
 
 		if a := p.AssumedTemperature(); a != nil {
 			fmt.Fprintf(w, "\nReduced takeoff by the assumed-temperature method (%s, max %.0f °C, limit %.0f %% thrust)\n\n",
