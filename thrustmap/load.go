@@ -546,6 +546,10 @@ func buildLever(c *collector, f *profileFile, p *Profile) {
 	default:
 		p.lever.TLAMinDeg, p.lever.TLAMaxDeg = *l.TLAMinDeg, *l.TLAMaxDeg
 	}
+	if len(f.Gate) > MaxGates {
+		c.add("gate", "%d gates declared, at most %d are allowed", len(f.Gate), MaxGates)
+		return
+	}
 	p.lever.IdleGate = l.IdleGate
 	p.lever.ReverseOnGroundOnly = l.ReverseOnGroundOnly
 	for i := range f.Gate {
@@ -572,14 +576,25 @@ func buildLever(c *collector, f *profileFile, p *Profile) {
 		if !(g.HysteresisDeg >= 0) || math.IsInf(g.HysteresisDeg, 0) {
 			c.add(key+".hysteresis_deg", "is %g, want a finite angle ≥ 0", g.HysteresisDeg)
 		}
-		switch {
-		case g.Rating != "" && g.Target != "":
-			c.add(key+".target", "give rating or target, not both")
-		case g.Rating == "" && g.Target == "":
-			c.add(key, "needs rating = \"NAME\" or target = \"EXPRESSION\"")
-		case g.Rating != "":
+		var ge gateExprs
+		if g.Rating == "" && g.Target == "" {
+			c.add(key, "needs rating = \"NAME\" or target = \"EXPRESSION\" (or both: the rating is then the fallback)")
+		}
+		if g.Rating != "" {
 			if _, ok := p.byName[g.Rating]; !ok {
 				c.add(key+".rating", "names rating %q, which the profile does not declare (ratings: %s)", g.Rating, listOrNone(ratingNames(p)))
+			}
+		}
+		if g.Target != "" {
+			var err error
+			if ge.target, err = compileExpr(p, g.Target, false); err != nil {
+				c.add(key+".target", "expression %q: %v", g.Target, err)
+			}
+		}
+		if g.When != "" {
+			var err error
+			if ge.when, err = compileExpr(p, g.When, true); err != nil {
+				c.add(key+".when", "expression %q: %v", g.When, err)
 			}
 		}
 		if n := len(p.gates); n > 0 {
@@ -593,6 +608,7 @@ func buildLever(c *collector, f *profileFile, p *Profile) {
 			}
 		}
 		p.gates = append(p.gates, gate)
+		p.gateExprs = append(p.gateExprs, ge)
 	}
 	if l.IdleGate != "" && !slices.ContainsFunc(p.gates, func(g Gate) bool { return g.Name == l.IdleGate }) {
 		c.add("lever.idle_gate", "names gate %q, which the profile does not declare", l.IdleGate)

@@ -23,6 +23,12 @@ type Profile struct {
 	redline     float64 // +Inf when none
 	lever       Lever
 	gates       []Gate
+	gateExprs   []gateExprs // compiled target and when of gates[i]
+}
+
+// gateExprs are a gate's compiled expressions (nil when not given).
+type gateExprs struct {
+	target, when *compiledExpr
 }
 
 // Rating is one rating table (takeoff, climb, ...) with its optional thrust
@@ -91,7 +97,7 @@ type Gate struct {
 	TLADeg        float64
 	CaptureDeg    float64 // half-width of the zone that snaps to the gate
 	HysteresisDeg float64 // extra width needed to leave the zone once inside
-	Rating        string  // the rating commanded, or "" when Target is set
+	Rating        string  // the rating commanded; with Target, the fallback when it fails
 	Target        string  // an expression for the command, or ""
 	When          string  // an expression; the gate is active while true ("" = always)
 	Notch         bool    // the physical lever has a notch here

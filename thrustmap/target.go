@@ -20,16 +20,44 @@ type Conditions struct {
 	AssumedC   float64 // the assumed temperature, °C, when AssumedSet
 }
 
+// Clamped is the set of inputs that were clamped to the edge of their table
+// or range. The first three bits are those of grid.Clamped.
+type Clamped uint8
+
+// The clamp bits.
+const (
+	ClampAltitude    Clamped = 1 << iota // pressure altitude beyond a table's axis
+	ClampTemperature                     // temperature beyond a table's axis
+	ClampMach                            // Mach beyond a table's axis
+	ClampRaw                             // raw lever counts beyond the calibrated points
+	ClampDevice                          // raw lever counts beyond the device's range
+)
+
+var clampNames = []string{"altitude", "temperature", "mach", "raw", "device"}
+
+// Names returns the clamped inputs' names in a fixed order, as in JSON
+// output; empty and non-nil for none.
+func (c Clamped) Names() []string { return bitNames(uint64(c), clampNames) }
+
 // Flags mark how a command was shaped after the table look-up.
 type Flags uint8
 
 // The flags.
 const (
+	// Raised: a gate's target was below the effective target of the gate
+	// nearer idle, so the command was raised to it (monotone command).
+	Raised Flags = 1 << iota
 	// Limited: the value was cut to the profile's redline ([limits] max).
-	Limited Flags = 1 << iota
+	Limited
+	// Interlock: reverse was selected in the air with reverse_on_ground_only;
+	// the command holds idle.
+	Interlock
+	// Fallback: a gate expression failed to evaluate or gave a non-finite
+	// value; the gate used its rating or the last good command instead.
+	Fallback
 )
 
-var flagNames = []string{"limited"}
+var flagNames = []string{"raised", "limited", "interlock", "fallback"}
 
 // Names returns the flag names in a fixed order; empty and non-nil for none.
 func (f Flags) Names() []string { return bitNames(uint64(f), flagNames) }
@@ -81,7 +109,7 @@ type Result struct {
 	Rating    string
 	Value     float64
 	Parameter Parameter
-	Clamped   grid.Clamped // axes on which a look-up was clamped to the grid edge
+	Clamped   Clamped // axes on which a look-up was clamped to the grid edge
 	Flags     Flags
 	Reduction Reduction
 }
@@ -139,7 +167,7 @@ func (p *Profile) target(r *Rating, c Conditions, res *Result) error {
 	}
 	res.Rating, res.Parameter = r.name, p.parameter
 	full, cl := r.base(c.AltitudeFt, c.OATC, c.Mach, isa)
-	res.Clamped = cl
+	res.Clamped = Clamped(cl)
 	value := full
 	if c.AssumedSet && r.assumed {
 		value = p.reduce(r, c, isa, full, res)
@@ -210,7 +238,7 @@ func (r *Rating) thrustAt(alt, oat, mach, isa float64) float64 {
 
 // correction sums the corrections of the bleeds on in c, at the actual
 // conditions, adding the axes clamped to cl.
-func (r *Rating) correction(c Conditions, isa float64, cl *grid.Clamped) float64 {
+func (r *Rating) correction(c Conditions, isa float64, cl *Clamped) float64 {
 	if c.Bleeds == 0 {
 		return 0
 	}
@@ -225,7 +253,7 @@ func (r *Rating) correction(c Conditions, isa float64, cl *grid.Clamped) float64
 			continue
 		}
 		v, gc := k.Grid.At([grid.NumAxes]float64{c.AltitudeFt, basisTemp(r.basis, c.OATC, c.Mach, isa), c.Mach})
-		*cl |= gc
+		*cl |= Clamped(gc)
 		sum += v
 	}
 	return sum
@@ -285,7 +313,7 @@ func (p *Profile) reduce(r *Rating, c Conditions, isa, full float64, res *Result
 	red.EffectiveC = ta
 	red.Applied = true
 	v, cl := r.base(alt, ta, mach, isa)
-	res.Clamped |= cl
+	res.Clamped |= Clamped(cl)
 	if p.parameter == N1 && a.Corrected {
 		// Same corrected speed N1/√θ as at Ta, so physical N1 scales by
 		// √(T_OAT/T_a) with temperatures in kelvin.

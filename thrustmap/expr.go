@@ -1,0 +1,264 @@
+package thrustmap
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+
+	"github.com/expr-lang/expr"
+	"github.com/expr-lang/expr/ast"
+	"github.com/expr-lang/expr/file"
+	"github.com/expr-lang/expr/vm"
+
+	"github.com/thrustmap/thrustmap/thrustmap/atmos"
+)
+
+// MaxExprNodes caps the size of a gate expression, so a profile cannot make
+// every lever frame evaluate something huge.
+const MaxExprNodes = 200
+
+// exprEnv is the typed environment of gate expressions and the shell (design
+// brief §4a). Its functions are bound once, when a scratch is made, to the
+// scratch's own profile and conditions, so evaluating allocates only what the
+// expression VM boxes.
+type exprEnv struct {
+	Alt         float64 `expr:"alt"`
+	OAT         float64 `expr:"oat"`
+	TAT         float64 `expr:"tat"`
+	ISADev      float64 `expr:"isa_dev"`
+	Mach        float64 `expr:"mach"`
+	TLA         float64 `expr:"tla"`
+	OnGround    bool    `expr:"on_ground"`
+	AssumedSet  bool    `expr:"assumed_set"`
+	AssumedTemp float64 `expr:"assumed_temp"`
+
+	Bleed    func(name string) bool                     `expr:"bleed"`
+	Rating   func(name string) float64                  `expr:"rating"`
+	RatingAt func(name string, alt, oat float64) float64 `expr:"rating_at"`
+	Assumed  func(name string) float64                  `expr:"assumed"`
+	ISATemp  func(alt float64) float64                  `expr:"isa_temp"`
+	Clamp    func(x, lo, hi float64) float64            `expr:"clamp"`
+	Lerp     func(a, b, f float64) float64              `expr:"lerp"`
+}
+
+// nameArgs are the environment functions whose first argument names
+// something in the profile; it must be a quoted constant, checked at load.
+var nameArgs = map[string]string{"rating": "rating", "rating_at": "rating", "assumed": "rating", "bleed": "bleed"}
+
+// exprScratch is what evaluating expressions needs per caller: a VM, an
+// environment and the first error a function met. It is not safe for
+// concurrent use; each lever state owns one.
+type exprScratch struct {
+	vm      vm.VM
+	env     exprEnv
+	profile *Profile
+	cond    Conditions
+	err     error
+}
+
+func newExprScratch(p *Profile) *exprScratch {
+	s := &exprScratch{profile: p}
+	fail := func(err error) float64 {
+		if s.err == nil {
+			s.err = err
+		}
+		return math.NaN()
+	}
+	rating := func(name string) *Rating {
+		r := p.find(name)
+		if r == nil {
+			fail(fmt.Errorf("%w %q", ErrUnknownRating, name))
+		}
+		return r
+	}
+	s.env = exprEnv{
+		Bleed: func(name string) bool {
+			i := p.bleedIndex(name)
+			return i >= 0 && s.cond.Bleeds.Has(i)
+		},
+		Rating: func(name string) float64 {
+			r := rating(name)
+			if r == nil {
+				return math.NaN()
+			}
+			v, err := p.RatingValue(r, s.cond)
+			if err != nil {
+				return fail(err)
+			}
+			return v
+		},
+		RatingAt: func(name string, alt, oat float64) float64 {
+			r := rating(name)
+			if r == nil {
+				return math.NaN()
+			}
+			c := s.cond
+			c.AltitudeFt, c.OATC = alt, oat
+			v, err := p.RatingValue(r, c)
+			if err != nil {
+				return fail(err)
+			}
+			return v
+		},
+		Assumed: func(name string) float64 {
+			r := rating(name)
+			if r == nil {
+				return math.NaN()
+			}
+			var res Result
+			if err := p.target(r, s.cond, &res); err != nil {
+				return fail(err)
+			}
+			return res.Value
+		},
+		ISATemp: func(alt float64) float64 {
+			t, err := atmos.ISATemperatureC(alt)
+			if err != nil {
+				return fail(err)
+			}
+			return t
+		},
+		Clamp: func(x, lo, hi float64) float64 { return math.Max(lo, math.Min(hi, x)) },
+		Lerp:  func(a, b, f float64) float64 { return a + (b-a)*f },
+	}
+	return s
+}
+
+// set loads conditions and a TLA into the environment; the conditions must
+// have passed checkConditions.
+func (s *exprScratch) set(c Conditions, tla float64) {
+	s.cond = c
+	e := &s.env
+	e.Alt, e.OAT, e.Mach, e.TLA = c.AltitudeFt, c.OATC, c.Mach, tla
+	e.TAT = basisTemp(TAT, c.OATC, c.Mach, 0)
+	e.ISADev = c.OATC - isaTemperature(c.AltitudeFt)
+	e.OnGround, e.AssumedSet, e.AssumedTemp = c.OnGround, c.AssumedSet, c.AssumedC
+	if !c.AssumedSet {
+		e.AssumedTemp = 0
+	}
+}
+
+// number runs a float-valued program; a run-time error or a non-finite
+// result is an error.
+func (s *exprScratch) number(prog *vm.Program) (float64, error) {
+	s.err = nil
+	out, err := s.vm.Run(prog, &s.env)
+	if err == nil {
+		err = s.err
+	}
+	if err != nil {
+		return 0, err
+	}
+	v, ok := out.(float64)
+	if !ok {
+		return 0, fmt.Errorf("result is %T, not a number", out)
+	}
+	if !finite(v) {
+		return 0, fmt.Errorf("result is %g", v)
+	}
+	return v, nil
+}
+
+// truth runs a bool-valued program.
+func (s *exprScratch) truth(prog *vm.Program) (bool, error) {
+	s.err = nil
+	out, err := s.vm.Run(prog, &s.env)
+	if err == nil {
+		err = s.err
+	}
+	if err != nil {
+		return false, err
+	}
+	b, ok := out.(bool)
+	if !ok {
+		return false, fmt.Errorf("result is %T, not true or false", out)
+	}
+	return b, nil
+}
+
+// compiledExpr is a compiled expression and what the model needs to know of it.
+type compiledExpr struct {
+	source  string
+	program *vm.Program
+	usesTLA bool // must be evaluated at every lever position, not once per conditions
+}
+
+// compileExpr compiles src against the environment; wantBool selects a
+// `when` (true/false) rather than a target (a number). Names given to rating,
+// rating_at, assumed and bleed must be quoted constants the profile declares.
+func compileExpr(p *Profile, src string, wantBool bool) (*compiledExpr, error) {
+	opts := []expr.Option{expr.Env(exprEnv{}), expr.MaxNodes(MaxExprNodes)}
+	if wantBool {
+		opts = append(opts, expr.AsBool())
+	} else {
+		opts = append(opts, expr.AsFloat64())
+	}
+	prog, err := expr.Compile(src, opts...)
+	if err != nil {
+		return nil, exprError(err)
+	}
+	ce := &compiledExpr{source: src, program: prog}
+	v := &nameChecker{profile: p}
+	node := prog.Node()
+	ast.Walk(&node, v)
+	if v.err != nil {
+		return nil, v.err
+	}
+	ce.usesTLA = v.usesTLA
+	return ce, nil
+}
+
+// exprError keeps the first line of a compile error and its column.
+func exprError(err error) error {
+	var fe *file.Error
+	if errors.As(err, &fe) {
+		msg, _, _ := strings.Cut(fe.Message, "\n")
+		if fe.Column > 0 {
+			return fmt.Errorf("%s (column %d)", msg, fe.Column+1)
+		}
+		return errors.New(msg)
+	}
+	msg, _, _ := strings.Cut(err.Error(), "\n")
+	return errors.New(msg)
+}
+
+// nameChecker walks a compiled expression: it finds uses of tla and checks
+// the names given to the profile's functions.
+type nameChecker struct {
+	profile *Profile
+	usesTLA bool
+	err     error
+}
+
+func (v *nameChecker) Visit(node *ast.Node) {
+	switch n := (*node).(type) {
+	case *ast.IdentifierNode:
+		if n.Value == "tla" {
+			v.usesTLA = true
+		}
+	case *ast.CallNode:
+		id, ok := n.Callee.(*ast.IdentifierNode)
+		if !ok || v.err != nil {
+			return
+		}
+		kind, ok := nameArgs[id.Value]
+		if !ok || len(n.Arguments) == 0 {
+			return
+		}
+		s, ok := n.Arguments[0].(*ast.StringNode)
+		if !ok {
+			v.err = fmt.Errorf("%s(...) needs a quoted %s name as its first argument", id.Value, kind)
+			return
+		}
+		p := v.profile
+		switch {
+		case kind == "bleed" && p.bleedIndex(s.Value) < 0:
+			v.err = fmt.Errorf("bleed(%q): unknown bleed (the profile has %s)", s.Value, listOrNone(p.bleeds))
+		case kind == "rating" && p.byName[s.Value] == nil:
+			v.err = fmt.Errorf("%s(%q): unknown rating (the profile has %s)", id.Value, s.Value, listOrNone(ratingNames(p)))
+		case id.Value == "assumed" && !p.byName[s.Value].assumed:
+			v.err = fmt.Errorf("assumed(%q): not an assumed-temperature rating (see [assumed_temperature])", s.Value)
+		}
+	}
+}

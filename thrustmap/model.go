@@ -1,0 +1,500 @@
+package thrustmap
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sync/atomic"
+)
+
+// MaxGates is the most gates a profile may declare: a lever state keeps its
+// per-gate working values in fixed arrays so the hot path never allocates.
+const MaxGates = 16
+
+// NoLever selects the profile's own gate geometry, without any lever's
+// calibration floors, in CommandAtTLA.
+const NoLever = -1
+
+// Model is a profile with a calibration: everything needed to turn raw lever
+// counts into engine commands. It is immutable once built and safe for
+// concurrent use; each lever of each goroutine keeps its own LeverState.
+type Model struct {
+	profile *Profile
+	cal     *Calibration
+	ratings []*Rating   // the rating of gates[i], or nil
+	idle    int         // index of the idle gate; -1 when none (no reverse range)
+	anyTLA  bool        // an expression reads tla: gates are re-evaluated at every position
+	levers  []leverGeom // per calibrated lever; plus the profile's own at the end
+}
+
+// leverGeom is the gate geometry one lever sees: the profile's capture and
+// hysteresis raised to the lever calibration's floors.
+type leverGeom struct {
+	cal        *LeverCalibration // nil for the profile's own geometry
+	id         int
+	capture    [MaxGates]float64
+	hysteresis [MaxGates]float64
+}
+
+// ErrLever is wrapped by errors about lever ids, raw values and gate layouts.
+var ErrLever = errors.New("lever")
+
+// NewModel combines a profile with a calibration (nil for a model that only
+// maps TLA). Each lever's effective capture and hysteresis are the larger of
+// the profile's and the calibration's floors, and must still keep the gates
+// apart by the spacing rule.
+func NewModel(p *Profile, cal *Calibration) (*Model, error) {
+	if len(p.gates) == 0 {
+		return nil, fmt.Errorf("%w: profile %s declares no gates", ErrLever, p.source)
+	}
+	m := &Model{profile: p, cal: cal, idle: -1}
+	for i, g := range p.gates {
+		if g.Rating != "" {
+			m.ratings = append(m.ratings, p.byName[g.Rating])
+		} else {
+			m.ratings = append(m.ratings, nil)
+		}
+		if g.Name == p.lever.IdleGate && p.lever.IdleGate != "" {
+			m.idle = i
+		}
+		ge := p.gateExprs[i]
+		m.anyTLA = m.anyTLA || (ge.target != nil && ge.target.usesTLA) || (ge.when != nil && ge.when.usesTLA)
+	}
+	if cal != nil {
+		for _, l := range cal.levers {
+			geom, err := m.geometry(l)
+			if err != nil {
+				return nil, err
+			}
+			m.levers = append(m.levers, geom)
+		}
+	}
+	own, err := m.geometry(nil)
+	if err != nil {
+		return nil, err
+	}
+	m.levers = append(m.levers, own)
+	return m, nil
+}
+
+// geometry floors the profile's gate zones with lever l's calibration and
+// checks the spacing rule.
+func (m *Model) geometry(l *LeverCalibration) (leverGeom, error) {
+	geom := leverGeom{cal: l, id: NoLever}
+	var minCap, minHyst float64
+	if l != nil {
+		geom.id = l.spec.ID
+		minCap, minHyst = l.spec.MinCaptureDeg, l.spec.MinHysteresisDeg
+	}
+	gates := m.profile.gates
+	for i, g := range gates {
+		geom.capture[i] = math.Max(g.CaptureDeg, minCap)
+		geom.hysteresis[i] = math.Max(g.HysteresisDeg, minHyst)
+		if i > 0 {
+			lo := gates[i-1]
+			if !(lo.TLADeg+geom.capture[i-1]+geom.hysteresis[i-1] < g.TLADeg-geom.capture[i]) {
+				return geom, fmt.Errorf("%w %d: with the calibration's floors (capture ≥ %g°, hysteresis ≥ %g°) gates %q and %q overlap: need %g + %g + %g < %g − %g",
+					ErrLever, geom.id, minCap, minHyst, lo.Name, g.Name, lo.TLADeg, geom.capture[i-1], geom.hysteresis[i-1], g.TLADeg, geom.capture[i])
+			}
+		}
+	}
+	return geom, nil
+}
+
+// Profile returns the model's profile.
+func (m *Model) Profile() *Profile { return m.profile }
+
+// Calibration returns the model's calibration, or nil.
+func (m *Model) Calibration() *Calibration { return m.cal }
+
+// GateName returns the name of gate i, or "" for -1.
+func (m *Model) GateName(i int) string {
+	if i < 0 || i >= len(m.profile.gates) {
+		return ""
+	}
+	return m.profile.gates[i].Name
+}
+
+// EffectiveZone returns gate i's capture half-width and hysteresis for lever
+// id (NoLever for the profile's own values).
+func (m *Model) EffectiveZone(lever, i int) (captureDeg, hysteresisDeg float64, err error) {
+	g, err := m.geom(lever)
+	if err != nil {
+		return 0, 0, err
+	}
+	return g.capture[i], g.hysteresis[i], nil
+}
+
+func (m *Model) geom(lever int) (*leverGeom, error) {
+	for i := range m.levers {
+		if m.levers[i].id == lever {
+			return &m.levers[i], nil
+		}
+	}
+	if m.cal == nil {
+		return nil, fmt.Errorf("%w %d: the model has no calibration", ErrLever, lever)
+	}
+	return nil, fmt.Errorf("%w %d is not in calibration %s", ErrLever, lever, m.cal.source)
+}
+
+// LeverCommand is the engine command for one lever sample.
+type LeverCommand struct {
+	Lever     int     // the lever's calibration id (NoLever for a TLA-only command)
+	Raw       float64 // the raw count as given
+	TLADeg    float64 // the calibrated lever angle
+	Gate      int     // the reported gate (with hysteresis), or -1
+	Lower     int     // the gates interpolated between, or -1 inside a capture zone
+	Upper     int
+	Fraction  float64 // position between Lower's and Upper's zone edges, 0 to 1
+	Value     float64 // the commanded parameter
+	Parameter Parameter
+	Reverse   bool    // the lever is in the reverse range
+	Clamped   Clamped // table axes, raw or device range clamped
+	Flags     Flags
+}
+
+// Unit returns "percent" or "ratio".
+func (c LeverCommand) Unit() string { return c.Parameter.Unit() }
+
+// Between reports whether the command was interpolated between two gates.
+func (c LeverCommand) Between() bool { return c.Lower >= 0 }
+
+// LeverState is the caller-owned state of one lever: the deadband's held
+// reading, the reported gate and the gate targets worked out at the last
+// conditions. Its zero value is ready (uncaptured). Use one per lever per
+// goroutine; it may be moved to a new model, which resets its cache.
+type LeverState struct {
+	held    float64
+	holding bool
+	gate    int // reported gate + 1; 0 when none
+	last    float64
+	hasLast bool
+
+	model *Model
+	geom  *leverGeom
+	cond  Conditions
+	ev    [MaxGates]gateEval
+	// The forward chain is worked out for gates idle..fwdTop, the reverse one
+	// for revBottom..idle; fwdPrev and revPrev are their last active gates.
+	fwdTop, revBottom int
+	fwdPrev, revPrev  int
+	whenFailed        bool // a `when` failed to evaluate at these conditions
+
+	scratch *exprScratch
+}
+
+// gateEval is one gate's working values at the cached conditions.
+type gateEval struct {
+	known    bool // active and own are worked out
+	active   bool
+	own      float64
+	ownFlags Flags
+	ownClamp Clamped
+	eff      float64
+	effFlags Flags
+	effClamp Clamped
+}
+
+// Reset returns the state to uncaptured with no held reading.
+func (s *LeverState) Reset() {
+	scratch := s.scratch
+	*s = LeverState{scratch: scratch}
+}
+
+// Command maps a raw lever count to the engine command at conditions c:
+// deadband, calibration, gates, targets. It allocates nothing unless an
+// expression gate is evaluated (see BenchmarkCommandExpr) or it returns an
+// error.
+func (m *Model) Command(s *LeverState, lever int, raw float64, c Conditions) (LeverCommand, error) {
+	geom, err := m.geom(lever)
+	if err != nil {
+		return LeverCommand{}, err
+	}
+	if geom.cal == nil {
+		return LeverCommand{}, fmt.Errorf("%w %d has no calibration: use CommandAtTLA", ErrLever, lever)
+	}
+	if math.IsNaN(raw) || math.IsInf(raw, 0) {
+		return LeverCommand{}, fmt.Errorf("%w %d: raw %g is not a finite count", ErrLever, lever, raw)
+	}
+	if s.geom != geom {
+		s.holding = false
+	}
+	if !s.holding || math.Abs(raw-s.held) > geom.cal.spec.Deadband {
+		s.held, s.holding = raw, true
+	}
+	tla, cl := geom.cal.TLA(s.held)
+	if raw < geom.cal.spec.RawMin || raw > geom.cal.spec.RawMax {
+		cl |= ClampDevice
+	}
+	return m.commandAt(s, geom, raw, tla, cl, c)
+}
+
+// CommandAtTLA is Command from a lever angle instead of raw counts, with the
+// gate zones of lever id (NoLever: the profile's own).
+func (m *Model) CommandAtTLA(s *LeverState, lever int, tlaDeg float64, c Conditions) (LeverCommand, error) {
+	geom, err := m.geom(lever)
+	if err != nil {
+		return LeverCommand{}, err
+	}
+	if math.IsNaN(tlaDeg) || math.IsInf(tlaDeg, 0) {
+		return LeverCommand{}, fmt.Errorf("%w: TLA %g is not a finite angle", ErrLever, tlaDeg)
+	}
+	return m.commandAt(s, geom, math.NaN(), tlaDeg, 0, c)
+}
+
+// commandAt is the gate logic of design brief §2 at lever angle tla.
+func (m *Model) commandAt(s *LeverState, geom *leverGeom, raw, tla float64, cl Clamped, c Conditions) (LeverCommand, error) {
+	if err := checkConditions(c); err != nil {
+		return LeverCommand{}, err
+	}
+	if s.model != m || s.geom != geom {
+		s.model, s.geom, s.gate, s.hasLast = m, geom, 0, false
+		s.invalidate(c)
+	} else if s.cond != c || m.anyTLA {
+		s.invalidate(c)
+	}
+	out := LeverCommand{Lever: geom.id, Raw: raw, TLADeg: tla, Gate: -1, Lower: -1, Upper: -1, Parameter: m.profile.parameter, Clamped: cl}
+	gates := m.profile.gates
+
+	// The capture zone the lever is in, or the active gates either side.
+	zone, lo, hi := -1, -1, -1
+	for i := range gates {
+		if !s.isActive(m, i, tla) {
+			continue
+		}
+		d := tla - gates[i].TLADeg
+		if math.Abs(d) <= geom.capture[i] {
+			zone = i
+			break
+		}
+		if d > 0 {
+			lo = i
+		} else {
+			hi = i
+			break
+		}
+	}
+
+	// The reported gate keeps its capture through the hysteresis band.
+	rep := s.gate - 1
+	if rep >= 0 && (!s.isActive(m, rep, tla) || math.Abs(tla-gates[rep].TLADeg) > geom.capture[rep]+geom.hysteresis[rep]) {
+		rep = -1
+	}
+	if zone >= 0 {
+		rep = zone
+	}
+	s.gate = rep + 1
+	out.Gate = rep
+
+	switch {
+	case zone >= 0:
+		out.Value, out.Flags, out.Clamped = s.effective(m, zone, tla, out.Flags, out.Clamped)
+	case lo >= 0 && hi >= 0:
+		loEdge := gates[lo].TLADeg + geom.capture[lo]
+		hiEdge := gates[hi].TLADeg - geom.capture[hi]
+		f := (tla - loEdge) / (hiEdge - loEdge)
+		var a, b float64
+		a, out.Flags, out.Clamped = s.effective(m, lo, tla, out.Flags, out.Clamped)
+		b, out.Flags, out.Clamped = s.effective(m, hi, tla, out.Flags, out.Clamped)
+		out.Value = a + (b-a)*f
+		out.Lower, out.Upper, out.Fraction = lo, hi, f
+	case lo >= 0: // beyond the forwardmost active gate: hold it
+		out.Value, out.Flags, out.Clamped = s.effective(m, lo, tla, out.Flags, out.Clamped)
+	case hi >= 0: // behind the aftmost active gate
+		out.Value, out.Flags, out.Clamped = s.effective(m, hi, tla, out.Flags, out.Clamped)
+	default:
+		return out, fmt.Errorf("%w: no gate is active at these conditions", ErrLever)
+	}
+
+	if m.idle >= 0 && tla < gates[m.idle].TLADeg-geom.capture[m.idle] {
+		out.Reverse = true
+		if m.profile.lever.ReverseOnGroundOnly && !c.OnGround {
+			// Reverse selected in the air: hold idle.
+			var fl Flags
+			var clamp Clamped
+			out.Value, fl, clamp = s.effective(m, m.idle, tla, 0, 0)
+			out.Flags = fl | Interlock
+			out.Clamped = cl | clamp
+		}
+	}
+	if s.whenFailed {
+		out.Flags |= Fallback
+	}
+	s.last, s.hasLast = out.Value, true
+	return out, nil
+}
+
+// invalidate drops the gate values worked out at other conditions.
+func (s *LeverState) invalidate(c Conditions) {
+	s.cond = c
+	for i := range s.ev {
+		s.ev[i] = gateEval{}
+	}
+	s.fwdTop, s.revBottom = -1, MaxGates
+	s.fwdPrev, s.revPrev = -1, -1
+	s.whenFailed = false
+}
+
+// isActive works out, once per conditions, whether gate i takes part: its
+// `when` holds and it has a target (its own, its fallback rating, or the
+// last good command).
+func (s *LeverState) isActive(m *Model, i int, tla float64) bool {
+	e := &s.ev[i]
+	if e.known {
+		return e.active
+	}
+	e.known = true
+	p := m.profile
+	ge := p.gateExprs[i]
+	if ge.when != nil {
+		ok, err := s.exprs(m, tla).truth(ge.when.program)
+		if err != nil {
+			s.whenFailed = true // the gate drops out and every command says so
+		}
+		if err != nil || !ok {
+			return false
+		}
+	}
+	if ge.target != nil {
+		v, err := s.exprs(m, tla).number(ge.target.program)
+		if err == nil {
+			e.own, e.active = v, true
+			e.own, e.ownFlags = limitFlags(p, v, e.ownFlags)
+			return true
+		}
+		e.ownFlags |= Fallback
+		if m.ratings[i] == nil {
+			if s.hasLast {
+				e.own, e.active = s.last, true
+			}
+			return e.active
+		}
+	}
+	var res Result
+	if err := p.target(m.ratings[i], s.cond, &res); err != nil {
+		return false // unreachable: the conditions were checked
+	}
+	e.own, e.active = res.Value, true
+	e.ownFlags |= res.Flags
+	e.ownClamp = res.Clamped
+	return true
+}
+
+// limitFlags cuts an expression's value to the redline.
+func limitFlags(p *Profile, v float64, f Flags) (float64, Flags) {
+	v, lf := p.limit(v)
+	return v, f | lf
+}
+
+// exprs returns the state's expression scratch, loaded with the conditions.
+func (s *LeverState) exprs(m *Model, tla float64) *exprScratch {
+	if s.scratch == nil || s.scratch.profile != m.profile {
+		s.scratch = newExprScratch(m.profile)
+	}
+	s.scratch.set(s.cond, tla)
+	return s.scratch
+}
+
+// effective returns gate g's effective target — its own, raised to the
+// effective target of the active gate next nearer idle (design brief §2,
+// monotone command) — adding its flags and clamps to f and cl. The chain is
+// worked out lazily, from idle outwards, once per conditions.
+func (s *LeverState) effective(m *Model, g int, tla float64, f Flags, cl Clamped) (float64, Flags, Clamped) {
+	base := max(m.idle, 0)
+	if g < base {
+		s.effective(m, base, tla, 0, 0) // the reverse chain starts from idle
+		for i := min(s.revBottom, base) - 1; i >= g; i-- {
+			s.chain(m, i, &s.revPrev, tla)
+			s.revBottom = i
+		}
+	} else {
+		if s.fwdTop < base-1 {
+			s.fwdTop = base - 1
+		}
+		for i := s.fwdTop + 1; i <= g; i++ {
+			s.chain(m, i, &s.fwdPrev, tla)
+			s.fwdTop = i
+			if i == base {
+				s.revPrev = s.fwdPrev
+			}
+		}
+	}
+	e := &s.ev[g]
+	return e.eff, f | e.effFlags, cl | e.effClamp
+}
+
+// chain works out gate i's effective target from *prev, the last active gate
+// of its chain, and moves *prev to i when i is active.
+func (s *LeverState) chain(m *Model, i int, prev *int, tla float64) {
+	if !s.isActive(m, i, tla) {
+		return
+	}
+	e := &s.ev[i]
+	e.eff, e.effFlags, e.effClamp = e.own, e.ownFlags, e.ownClamp
+	if *prev >= 0 {
+		p := &s.ev[*prev]
+		if p.eff > e.own {
+			e.eff, e.effFlags, e.effClamp = p.eff, p.effFlags|Raised, p.effClamp
+		}
+	}
+	*prev = i
+}
+
+// Split returns the spread of lever angles across commands: the largest TLA
+// minus the smallest, 0 for fewer than two.
+func Split(cmds ...LeverCommand) float64 {
+	if len(cmds) < 2 {
+		return 0
+	}
+	lo, hi := cmds[0].TLADeg, cmds[0].TLADeg
+	for _, c := range cmds[1:] {
+		lo, hi = math.Min(lo, c.TLADeg), math.Max(hi, c.TLADeg)
+	}
+	return hi - lo
+}
+
+// Holder holds the current model for readers on other goroutines and lets a
+// reload swap in a new one atomically; readers never see a half-built model.
+type Holder struct {
+	model atomic.Pointer[Model]
+}
+
+// NewHolder returns a holder of m.
+func NewHolder(m *Model) *Holder {
+	h := &Holder{}
+	h.model.Store(m)
+	return h
+}
+
+// Model returns the current model.
+func (h *Holder) Model() *Model { return h.model.Load() }
+
+// Swap installs m and returns the previous model.
+func (h *Holder) Swap(m *Model) *Model { return h.model.Swap(m) }
+
+// Reload builds a model with load and installs it; on error the current
+// model stays in place.
+func (h *Holder) Reload(load func() (*Model, error)) error {
+	m, err := load()
+	if err != nil {
+		return err
+	}
+	h.model.Store(m)
+	return nil
+}
+
+// LoadModel loads a profile (file or embedded name) and, when calPath is
+// not empty, a calibration, and builds the model.
+func LoadModel(profile, calPath string) (*Model, error) {
+	p, err := LoadProfile(profile)
+	if err != nil {
+		return nil, err
+	}
+	var cal *Calibration
+	if calPath != "" {
+		if cal, err = LoadCalibration(calPath); err != nil {
+			return nil, err
+		}
+	}
+	return NewModel(p, cal)
+}
