@@ -33,13 +33,13 @@ type exprEnv struct {
 	AssumedSet  bool    `expr:"assumed_set"`
 	AssumedTemp float64 `expr:"assumed_temp"`
 
-	Bleed    func(name string) bool                     `expr:"bleed"`
-	Rating   func(name string) float64                  `expr:"rating"`
+	Bleed    func(name string) bool                      `expr:"bleed"`
+	Rating   func(name string) float64                   `expr:"rating"`
 	RatingAt func(name string, alt, oat float64) float64 `expr:"rating_at"`
-	Assumed  func(name string) float64                  `expr:"assumed"`
-	ISATemp  func(alt float64) float64                  `expr:"isa_temp"`
-	Clamp    func(x, lo, hi float64) float64            `expr:"clamp"`
-	Lerp     func(a, b, f float64) float64              `expr:"lerp"`
+	Assumed  func(name string) float64                   `expr:"assumed"`
+	ISATemp  func(alt float64) float64                   `expr:"isa_temp"`
+	Clamp    func(x, lo, hi float64) float64             `expr:"clamp"`
+	Lerp     func(a, b, f float64) float64               `expr:"lerp"`
 }
 
 // nameArgs are the environment functions whose first argument names
