@@ -59,12 +59,7 @@ type exprScratch struct {
 
 func newExprScratch(p *Profile) *exprScratch {
 	s := &exprScratch{profile: p}
-	fail := func(err error) float64 {
-		if s.err == nil {
-			s.err = err
-		}
-		return math.NaN()
-	}
+	fail := s.fail
 	rating := func(name string) *Rating {
 		r := p.find(name)
 		if r == nil {
@@ -125,6 +120,15 @@ func newExprScratch(p *Profile) *exprScratch {
 	return s
 }
 
+// fail records the first error a function meets and returns NaN, which the
+// caller turns into the error.
+func (s *exprScratch) fail(err error) float64 {
+	if s.err == nil {
+		s.err = err
+	}
+	return math.NaN()
+}
+
 // set loads conditions and a TLA into the environment; the conditions must
 // have passed checkConditions.
 func (s *exprScratch) set(c Conditions, tla float64) {
@@ -139,20 +143,25 @@ func (s *exprScratch) set(c Conditions, tla float64) {
 	}
 }
 
-// number runs a float-valued program; a run-time error or a non-finite
-// result is an error.
-func (s *exprScratch) number(prog *vm.Program) (float64, error) {
+// number evaluates a float-valued expression; a run-time error or a
+// non-finite result is an error.
+func (s *exprScratch) number(ce *compiledExpr) (float64, error) {
 	s.err = nil
-	out, err := s.vm.Run(prog, &s.env)
-	if err == nil {
-		err = s.err
+	var v float64
+	if ce.num != nil {
+		v = ce.num(s)
+	} else {
+		out, err := s.vm.Run(ce.program, &s.env)
+		if err != nil {
+			return 0, err
+		}
+		var ok bool
+		if v, ok = out.(float64); !ok {
+			return 0, fmt.Errorf("result is %T, not a number", out)
+		}
 	}
-	if err != nil {
-		return 0, err
-	}
-	v, ok := out.(float64)
-	if !ok {
-		return 0, fmt.Errorf("result is %T, not a number", out)
+	if s.err != nil {
+		return 0, s.err
 	}
 	if !finite(v) {
 		return 0, fmt.Errorf("result is %g", v)
@@ -160,19 +169,24 @@ func (s *exprScratch) number(prog *vm.Program) (float64, error) {
 	return v, nil
 }
 
-// truth runs a bool-valued program.
-func (s *exprScratch) truth(prog *vm.Program) (bool, error) {
+// truth evaluates a bool-valued expression.
+func (s *exprScratch) truth(ce *compiledExpr) (bool, error) {
 	s.err = nil
-	out, err := s.vm.Run(prog, &s.env)
-	if err == nil {
-		err = s.err
+	var b bool
+	if ce.truth != nil {
+		b = ce.truth(s)
+	} else {
+		out, err := s.vm.Run(ce.program, &s.env)
+		if err != nil {
+			return false, err
+		}
+		var ok bool
+		if b, ok = out.(bool); !ok {
+			return false, fmt.Errorf("result is %T, not true or false", out)
+		}
 	}
-	if err != nil {
-		return false, err
-	}
-	b, ok := out.(bool)
-	if !ok {
-		return false, fmt.Errorf("result is %T, not true or false", out)
+	if s.err != nil {
+		return false, s.err
 	}
 	return b, nil
 }
@@ -181,7 +195,9 @@ func (s *exprScratch) truth(prog *vm.Program) (bool, error) {
 type compiledExpr struct {
 	source  string
 	program *vm.Program
-	usesTLA bool // must be evaluated at every lever position, not once per conditions
+	num     numFn  // the allocation-free form of a number, or nil: run program
+	truth   boolFn // the allocation-free form of a `when`, or nil: run program
+	usesTLA bool   // must be evaluated at every lever position, not once per conditions
 }
 
 // compileExpr compiles src against the environment; wantBool selects a
@@ -206,6 +222,11 @@ func compileExpr(p *Profile, src string, wantBool bool) (*compiledExpr, error) {
 		return nil, v.err
 	}
 	ce.usesTLA = v.usesTLA
+	if wantBool {
+		ce.truth, _ = fastBool(p, node)
+	} else {
+		ce.num, _ = fastNumber(p, node)
+	}
 	return ce, nil
 }
 

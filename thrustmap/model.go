@@ -24,6 +24,7 @@ type Model struct {
 	ratings []*Rating   // the rating of gates[i], or nil
 	idle    int         // index of the idle gate; -1 when none (no reverse range)
 	anyTLA  bool        // an expression reads tla: gates are re-evaluated at every position
+	always  uint16      // bit i: gate i is active at any conditions (a rating, no when)
 	levers  []leverGeom // per calibrated lever; plus the profile's own at the end
 }
 
@@ -58,6 +59,9 @@ func NewModel(p *Profile, cal *Calibration) (*Model, error) {
 			m.idle = i
 		}
 		ge := p.gateExprs[i]
+		if ge.when == nil && (ge.target == nil || g.Rating != "") {
+			m.always |= 1 << i
+		}
 		m.anyTLA = m.anyTLA || (ge.target != nil && ge.target.usesTLA) || (ge.when != nil && ge.when.usesTLA)
 	}
 	if cal != nil {
@@ -162,7 +166,7 @@ func (c LeverCommand) Between() bool { return c.Lower >= 0 }
 // LeverState is the caller-owned state of one lever: the deadband's held
 // reading, the reported gate and the gate targets worked out at the last
 // conditions. Its zero value is ready (uncaptured). Use one per lever per
-// goroutine; it may be moved to a new model, which resets its cache.
+// goroutine; it may be moved to a new model, which resets it.
 type LeverState struct {
 	held    float64
 	holding bool
@@ -170,29 +174,30 @@ type LeverState struct {
 	last    float64
 	hasLast bool
 
-	model *Model
-	geom  *leverGeom
-	cond  Conditions
-	ev    [MaxGates]gateEval
-	// The forward chain is worked out for gates idle..fwdTop, the reverse one
-	// for revBottom..idle; fwdPrev and revPrev are their last active gates.
-	fwdTop, revBottom int
-	fwdPrev, revPrev  int
-	whenFailed        bool // a `when` failed to evaluate at these conditions
+	// The gate values at cond, for model and geom, worked out lazily: bit i
+	// of a mask is gate i.
+	model      *Model
+	geom       *leverGeom
+	cond       Conditions
+	whenFailed bool   // a `when` failed to evaluate at these conditions
+	whenKnown  uint16 // `when` evaluated
+	whenTrue   uint16
+	ownKnown   uint16 // own target worked out
+	effKnown   uint16 // effective target worked out
+	gates      [MaxGates]gateEval
 
 	scratch *exprScratch
 }
 
-// gateEval is one gate's working values at the cached conditions.
+// gateEval is one gate's working values at the state's conditions.
 type gateEval struct {
-	known    bool // active and own are worked out
-	active   bool
-	own      float64
+	hasOwn   bool    // the gate has a target (its own, a fallback or the last command)
+	own      float64 // the gate's own target
 	ownFlags Flags
 	ownClamp Clamped
-	eff      float64
-	effFlags Flags
-	effClamp Clamped
+	eff      float64 // raised to the active gate next nearer idle
+	flags    Flags   // of eff
+	clamp    Clamped // of eff
 }
 
 // Reset returns the state to uncaptured with no held reading.
@@ -202,22 +207,24 @@ func (s *LeverState) Reset() {
 }
 
 // Command maps a raw lever count to the engine command at conditions c:
-// deadband, calibration, gates, targets. It allocates nothing unless an
-// expression gate is evaluated (see BenchmarkCommandExpr) or it returns an
-// error.
+// deadband, calibration, gates, targets. The gate targets are worked out
+// when the conditions differ from the last call's and reused otherwise. It
+// allocates nothing unless an expression gate is evaluated (see
+// BenchmarkCommandExpr) or it returns an error.
 func (m *Model) Command(s *LeverState, lever int, raw float64, c Conditions) (LeverCommand, error) {
-	geom, err := m.geom(lever)
-	if err != nil {
-		return LeverCommand{}, err
-	}
-	if geom.cal == nil {
-		return LeverCommand{}, fmt.Errorf("%w %d has no calibration: use CommandAtTLA", ErrLever, lever)
+	geom := s.geom
+	if s.model != m || geom == nil || geom.id != lever {
+		var err error
+		if geom, err = m.geom(lever); err != nil {
+			return LeverCommand{}, err
+		}
+		if geom.cal == nil {
+			return LeverCommand{}, fmt.Errorf("%w %d has no calibration: use CommandAtTLA", ErrLever, lever)
+		}
+		s.holding = false
 	}
 	if math.IsNaN(raw) || math.IsInf(raw, 0) {
 		return LeverCommand{}, fmt.Errorf("%w %d: raw %g is not a finite count", ErrLever, lever, raw)
-	}
-	if s.geom != geom {
-		s.holding = false
 	}
 	if !s.holding || math.Abs(raw-s.held) > geom.cal.spec.Deadband {
 		s.held, s.holding = raw, true
@@ -226,7 +233,9 @@ func (m *Model) Command(s *LeverState, lever int, raw float64, c Conditions) (Le
 	if raw < geom.cal.spec.RawMin || raw > geom.cal.spec.RawMax {
 		cl |= ClampDevice
 	}
-	return m.commandAt(s, geom, raw, tla, cl, c)
+	var out LeverCommand
+	err := m.commandAt(s, geom, raw, tla, cl, c, &out)
+	return out, err
 }
 
 // CommandAtTLA is Command from a lever angle instead of raw counts, with the
@@ -239,27 +248,37 @@ func (m *Model) CommandAtTLA(s *LeverState, lever int, tlaDeg float64, c Conditi
 	if math.IsNaN(tlaDeg) || math.IsInf(tlaDeg, 0) {
 		return LeverCommand{}, fmt.Errorf("%w: TLA %g is not a finite angle", ErrLever, tlaDeg)
 	}
-	return m.commandAt(s, geom, math.NaN(), tlaDeg, 0, c)
+	var out LeverCommand
+	err = m.commandAt(s, geom, math.NaN(), tlaDeg, 0, c, &out)
+	return out, err
 }
 
-// commandAt is the gate logic of design brief §2 at lever angle tla.
-func (m *Model) commandAt(s *LeverState, geom *leverGeom, raw, tla float64, cl Clamped, c Conditions) (LeverCommand, error) {
-	if err := checkConditions(c); err != nil {
-		return LeverCommand{}, err
-	}
-	if s.model != m || s.geom != geom {
+// commandAt is the gate logic of design brief §2 at lever angle tla; it
+// fills *out, which must be zero.
+func (m *Model) commandAt(s *LeverState, geom *leverGeom, raw, tla float64, cl Clamped, c Conditions, out *LeverCommand) error {
+	switch {
+	case s.model != m || s.geom != geom:
+		if err := checkConditions(c); err != nil {
+			return err
+		}
 		s.model, s.geom, s.gate, s.hasLast = m, geom, 0, false
 		s.invalidate(c)
-	} else if s.cond != c || m.anyTLA {
+	case s.cond != c:
+		if err := checkConditions(c); err != nil {
+			return err
+		}
+		s.invalidate(c)
+	case m.anyTLA:
 		s.invalidate(c)
 	}
-	out := LeverCommand{Lever: geom.id, Raw: raw, TLADeg: tla, Gate: -1, Lower: -1, Upper: -1, Parameter: m.profile.parameter, Clamped: cl}
+	out.Lever, out.Raw, out.TLADeg, out.Parameter, out.Clamped = geom.id, raw, tla, m.profile.parameter, cl
+	out.Gate, out.Lower, out.Upper = -1, -1, -1
 	gates := m.profile.gates
 
 	// The capture zone the lever is in, or the active gates either side.
 	zone, lo, hi := -1, -1, -1
 	for i := range gates {
-		if !s.isActive(m, i, tla) {
+		if m.always&(1<<i) == 0 && !s.active(m, i, tla) {
 			continue
 		}
 		d := tla - gates[i].TLADeg
@@ -277,7 +296,7 @@ func (m *Model) commandAt(s *LeverState, geom *leverGeom, raw, tla float64, cl C
 
 	// The reported gate keeps its capture through the hysteresis band.
 	rep := s.gate - 1
-	if rep >= 0 && (!s.isActive(m, rep, tla) || math.Abs(tla-gates[rep].TLADeg) > geom.capture[rep]+geom.hysteresis[rep]) {
+	if rep >= 0 && (!s.active(m, rep, tla) || math.Abs(tla-gates[rep].TLADeg) > geom.capture[rep]+geom.hysteresis[rep]) {
 		rep = -1
 	}
 	if zone >= 0 {
@@ -288,102 +307,134 @@ func (m *Model) commandAt(s *LeverState, geom *leverGeom, raw, tla float64, cl C
 
 	switch {
 	case zone >= 0:
-		out.Value, out.Flags, out.Clamped = s.effective(m, zone, tla, out.Flags, out.Clamped)
+		e := s.effective(m, zone, tla)
+		out.Value, out.Flags, out.Clamped = e.eff, e.flags, cl|e.clamp
 	case lo >= 0 && hi >= 0:
 		loEdge := gates[lo].TLADeg + geom.capture[lo]
 		hiEdge := gates[hi].TLADeg - geom.capture[hi]
 		f := (tla - loEdge) / (hiEdge - loEdge)
-		var a, b float64
-		a, out.Flags, out.Clamped = s.effective(m, lo, tla, out.Flags, out.Clamped)
-		b, out.Flags, out.Clamped = s.effective(m, hi, tla, out.Flags, out.Clamped)
-		out.Value = a + (b-a)*f
+		a, b := s.effective(m, lo, tla), s.effective(m, hi, tla)
+		out.Value = a.eff + (b.eff-a.eff)*f
+		out.Flags, out.Clamped = a.flags|b.flags, cl|a.clamp|b.clamp
 		out.Lower, out.Upper, out.Fraction = lo, hi, f
-	case lo >= 0: // beyond the forwardmost active gate: hold it
-		out.Value, out.Flags, out.Clamped = s.effective(m, lo, tla, out.Flags, out.Clamped)
-	case hi >= 0: // behind the aftmost active gate
-		out.Value, out.Flags, out.Clamped = s.effective(m, hi, tla, out.Flags, out.Clamped)
+	case lo >= 0: // forward of the forwardmost active gate: hold it
+		e := s.effective(m, lo, tla)
+		out.Value, out.Flags, out.Clamped = e.eff, e.flags, cl|e.clamp
+	case hi >= 0: // aft of the aftmost active gate
+		e := s.effective(m, hi, tla)
+		out.Value, out.Flags, out.Clamped = e.eff, e.flags, cl|e.clamp
 	default:
-		return out, fmt.Errorf("%w: no gate is active at these conditions", ErrLever)
+		return fmt.Errorf("%w: no gate is active at these conditions", ErrLever)
 	}
 
-	if m.idle >= 0 && tla < gates[m.idle].TLADeg-geom.capture[m.idle] {
+	if idle := m.idle; idle >= 0 && tla < gates[idle].TLADeg-geom.capture[idle] {
 		out.Reverse = true
 		if m.profile.lever.ReverseOnGroundOnly && !c.OnGround {
 			// Reverse selected in the air: hold idle.
-			var fl Flags
-			var clamp Clamped
-			out.Value, fl, clamp = s.effective(m, m.idle, tla, 0, 0)
-			out.Flags = fl | Interlock
-			out.Clamped = cl | clamp
+			e := s.effective(m, idle, tla)
+			out.Value, out.Flags, out.Clamped = e.eff, e.flags|Interlock, cl|e.clamp
 		}
 	}
 	if s.whenFailed {
 		out.Flags |= Fallback
 	}
 	s.last, s.hasLast = out.Value, true
-	return out, nil
+	return nil
 }
 
 // invalidate drops the gate values worked out at other conditions.
 func (s *LeverState) invalidate(c Conditions) {
-	s.cond = c
-	for i := range s.ev {
-		s.ev[i] = gateEval{}
-	}
-	s.fwdTop, s.revBottom = -1, MaxGates
-	s.fwdPrev, s.revPrev = -1, -1
-	s.whenFailed = false
+	s.cond, s.whenFailed = c, false
+	s.whenKnown, s.ownKnown, s.effKnown = 0, 0, 0
 }
 
-// isActive works out, once per conditions, whether gate i takes part: its
-// `when` holds and it has a target (its own, its fallback rating, or the
-// last good command).
-func (s *LeverState) isActive(m *Model, i int, tla float64) bool {
-	e := &s.ev[i]
-	if e.known {
-		return e.active
-	}
-	e.known = true
-	p := m.profile
-	ge := p.gateExprs[i]
+// active reports whether gate i takes part at the state's conditions: its
+// `when` holds and it has a target (its own, its fallback rating, or the last
+// good command). A gate commanding a rating with no `when` always does.
+func (s *LeverState) active(m *Model, i int, tla float64) bool {
+	bit := uint16(1) << i
+	ge := &m.profile.gateExprs[i]
 	if ge.when != nil {
-		ok, err := s.exprs(m, tla).truth(ge.when.program)
-		if err != nil {
-			s.whenFailed = true // the gate drops out and every command says so
+		if s.whenKnown&bit == 0 {
+			s.whenKnown |= bit
+			ok, err := s.exprs(m, tla).truth(ge.when)
+			if err != nil {
+				s.whenFailed = true // the gate drops out and every command says so
+			}
+			if err == nil && ok {
+				s.whenTrue |= bit
+			} else {
+				s.whenTrue &^= bit
+			}
 		}
-		if err != nil || !ok {
+		if s.whenTrue&bit == 0 {
 			return false
 		}
 	}
-	if ge.target != nil {
-		v, err := s.exprs(m, tla).number(ge.target.program)
-		if err == nil {
-			e.own, e.active = v, true
-			e.own, e.ownFlags = limitFlags(p, v, e.ownFlags)
-			return true
-		}
-		e.ownFlags |= Fallback
-		if m.ratings[i] == nil {
-			if s.hasLast {
-				e.own, e.active = s.last, true
-			}
-			return e.active
-		}
+	if ge.target == nil || m.ratings[i] != nil {
+		return true
 	}
-	var res Result
-	if err := p.target(m.ratings[i], s.cond, &res); err != nil {
-		return false // unreachable: the conditions were checked
-	}
-	e.own, e.active = res.Value, true
-	e.ownFlags |= res.Flags
-	e.ownClamp = res.Clamped
-	return true
+	return s.own(m, i, tla).hasOwn
 }
 
-// limitFlags cuts an expression's value to the redline.
-func limitFlags(p *Profile, v float64, f Flags) (float64, Flags) {
-	v, lf := p.limit(v)
-	return v, f | lf
+// own works out gate i's own target once per conditions.
+func (s *LeverState) own(m *Model, i int, tla float64) *gateEval {
+	e := &s.gates[i]
+	bit := uint16(1) << i
+	if s.ownKnown&bit != 0 {
+		return e
+	}
+	s.ownKnown |= bit
+	*e = gateEval{}
+	p := m.profile
+	if ge := &p.gateExprs[i]; ge.target != nil {
+		v, err := s.exprs(m, tla).number(ge.target)
+		if err == nil {
+			e.own, e.ownFlags = p.limit(v)
+			e.hasOwn = true
+			return e
+		}
+		e.ownFlags = Fallback
+		if m.ratings[i] == nil {
+			e.own, e.hasOwn = s.last, s.hasLast
+			return e
+		}
+	}
+	v, f, cl := p.plainValue(m.ratings[i], &s.cond)
+	e.own, e.hasOwn = v, true
+	e.ownFlags |= f
+	e.ownClamp = cl
+	return e
+}
+
+// effective returns gate g (active) with its effective target: its own,
+// raised to the effective target of the active gate next nearer idle (design
+// brief §2, monotone command), worked out along the chain from idle.
+func (s *LeverState) effective(m *Model, g int, tla float64) *gateEval {
+	e := &s.gates[g]
+	if s.effKnown&(1<<g) != 0 {
+		return e
+	}
+	base, step := max(m.idle, 0), -1
+	if g < base {
+		step = 1
+	}
+	prev := -1
+	for i := g + step; i >= 0 && (step < 0 && i >= base || step > 0 && i <= base); i += step {
+		if m.always&(1<<i) != 0 || s.active(m, i, tla) {
+			prev = i
+			break
+		}
+	}
+	s.own(m, g, tla)
+	e.eff, e.flags, e.clamp = e.own, e.ownFlags, e.ownClamp
+	if prev >= 0 {
+		if p := s.effective(m, prev, tla); p.eff > e.own {
+			e.eff, e.flags, e.clamp = p.eff, p.flags|Raised, p.clamp
+		}
+	}
+	s.effKnown |= 1 << g
+	return e
 }
 
 // exprs returns the state's expression scratch, loaded with the conditions.
@@ -393,51 +444,6 @@ func (s *LeverState) exprs(m *Model, tla float64) *exprScratch {
 	}
 	s.scratch.set(s.cond, tla)
 	return s.scratch
-}
-
-// effective returns gate g's effective target — its own, raised to the
-// effective target of the active gate next nearer idle (design brief §2,
-// monotone command) — adding its flags and clamps to f and cl. The chain is
-// worked out lazily, from idle outwards, once per conditions.
-func (s *LeverState) effective(m *Model, g int, tla float64, f Flags, cl Clamped) (float64, Flags, Clamped) {
-	base := max(m.idle, 0)
-	if g < base {
-		s.effective(m, base, tla, 0, 0) // the reverse chain starts from idle
-		for i := min(s.revBottom, base) - 1; i >= g; i-- {
-			s.chain(m, i, &s.revPrev, tla)
-			s.revBottom = i
-		}
-	} else {
-		if s.fwdTop < base-1 {
-			s.fwdTop = base - 1
-		}
-		for i := s.fwdTop + 1; i <= g; i++ {
-			s.chain(m, i, &s.fwdPrev, tla)
-			s.fwdTop = i
-			if i == base {
-				s.revPrev = s.fwdPrev
-			}
-		}
-	}
-	e := &s.ev[g]
-	return e.eff, f | e.effFlags, cl | e.effClamp
-}
-
-// chain works out gate i's effective target from *prev, the last active gate
-// of its chain, and moves *prev to i when i is active.
-func (s *LeverState) chain(m *Model, i int, prev *int, tla float64) {
-	if !s.isActive(m, i, tla) {
-		return
-	}
-	e := &s.ev[i]
-	e.eff, e.effFlags, e.effClamp = e.own, e.ownFlags, e.ownClamp
-	if *prev >= 0 {
-		p := &s.ev[*prev]
-		if p.eff > e.own {
-			e.eff, e.effFlags, e.effClamp = p.eff, p.effFlags|Raised, p.effClamp
-		}
-	}
-	*prev = i
 }
 
 // Split returns the spread of lever angles across commands: the largest TLA

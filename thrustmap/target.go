@@ -172,7 +172,7 @@ func (p *Profile) target(r *Rating, c Conditions, res *Result) error {
 	if c.AssumedSet && r.assumed {
 		value = p.reduce(r, c, isa, full, res)
 	}
-	corr := r.correction(c, isa, &res.Clamped)
+	corr := r.correction(&c, isa, &res.Clamped)
 	res.Value, res.Flags = p.limit(value + corr)
 	if res.Reduction.Evaluated {
 		res.Reduction.ValueFull, _ = p.limit(full + corr)
@@ -183,10 +183,27 @@ func (p *Profile) target(r *Rating, c Conditions, res *Result) error {
 // RatingValue is the rating's value at c with the bleed corrections and
 // without any reduction: the value gate expressions call rating("name").
 func (p *Profile) RatingValue(r *Rating, c Conditions) (float64, error) {
-	c.AssumedSet = false
-	var res Result
-	err := p.target(r, c, &res)
-	return res.Value, err
+	if err := checkConditions(c); err != nil {
+		return 0, err
+	}
+	v, _, _ := p.plainValue(r, &c)
+	return v, nil
+}
+
+// plainValue is the rating's value at checked conditions, corrections
+// included, cut to the redline, without any reduction.
+func (p *Profile) plainValue(r *Rating, c *Conditions) (float64, Flags, Clamped) {
+	isa := math.NaN()
+	if r.needsISA {
+		isa = isaTemperature(c.AltitudeFt)
+	}
+	v, gc := r.base(c.AltitudeFt, c.OATC, c.Mach, isa)
+	cl := Clamped(gc)
+	if c.Bleeds != 0 {
+		v += r.correction(c, isa, &cl)
+	}
+	v, f := p.limit(v)
+	return v, f, cl
 }
 
 // checkConditions rejects non-finite or out-of-atmosphere conditions.
@@ -238,7 +255,7 @@ func (r *Rating) thrustAt(alt, oat, mach, isa float64) float64 {
 
 // correction sums the corrections of the bleeds on in c, at the actual
 // conditions, adding the axes clamped to cl.
-func (r *Rating) correction(c Conditions, isa float64, cl *Clamped) float64 {
+func (r *Rating) correction(c *Conditions, isa float64, cl *Clamped) float64 {
 	if c.Bleeds == 0 {
 		return 0
 	}

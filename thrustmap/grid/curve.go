@@ -3,7 +3,8 @@ package grid
 // Curve is a one-dimensional table y(x) with the same interpolation,
 // clamping and guarantees as a Grid: the shape of a lever calibration.
 type Curve struct {
-	g *Grid
+	g      *Grid
+	xs, ys []float64 // the grid's own slices, for the linear fast path
 }
 
 // NewCurve builds a curve through (xs, ys); xs must be finite and strictly
@@ -14,14 +15,25 @@ func NewCurve(xs, ys []float64, method Method) (*Curve, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &Curve{g: g}, nil
+	return &Curve{g: g, xs: g.axes[Altitude], ys: g.values}, nil
 }
 
 // At returns y at x, with x clamped to the curve's ends; clamped reports
 // whether it was. x must not be NaN.
 func (c *Curve) At(x float64) (y float64, clamped bool) {
-	v, cl := c.g.At([NumAxes]float64{x, 0, 0})
-	return v, cl != 0
+	if c.g.method == Monotone {
+		v, cl := c.g.At([NumAxes]float64{x, 0, 0})
+		return v, cl != 0
+	}
+	xs, last := c.xs, len(c.xs)-1
+	if x <= xs[0] {
+		return c.ys[0], x < xs[0]
+	}
+	if x >= xs[last] {
+		return c.ys[last], x > xs[last]
+	}
+	i := segment(xs, x)
+	return lerp(c.ys[i], c.ys[i+1], (x-xs[i])/(xs[i+1]-xs[i])), false
 }
 
 // Method returns the curve's interpolation method.

@@ -266,3 +266,17 @@ func bench12x12(b *testing.B, m Method) *Grid {
 	}
 	return g
 }
+
+// BenchmarkAtLinear12x12Drift queries a slowly drifting point, as a sim's
+// conditions drift frame to frame (the searches are predictable).
+func BenchmarkAtLinear12x12Drift(b *testing.B) {
+	g := bench12x12(b, Linear)
+	b.ReportAllocs()
+	s := 0.0
+	for i := 0; i < b.N; i++ {
+		alt := float64(i%22000) * 0.5
+		v, _ := g.At([NumAxes]float64{alt, 25 - 0.002*alt, 0})
+		s += v
+	}
+	_ = s
+}
