@@ -2,9 +2,11 @@ package thrustmap
 
 import (
 	"bytes"
+	"embed"
 	"fmt"
 	"math"
 	"os"
+	"path"
 	"slices"
 	"strconv"
 	"strings"
@@ -260,13 +262,30 @@ type leverCalibFile struct {
 	MinHysteresisDeg float64     `toml:"min_hysteresis_deg"`
 }
 
-// LoadCalibration reads a calibration file.
-func LoadCalibration(path string) (*Calibration, error) {
-	b, err := os.ReadFile(path)
+//go:embed calibrations/*.toml
+var embeddedCalibrations embed.FS
+
+// EmbeddedCalibrationText returns the TOML text of the calibration built in
+// for an embedded profile (an invented quadrant for the demos).
+func EmbeddedCalibrationText(name string) ([]byte, bool) {
+	b, err := embeddedCalibrations.ReadFile(path.Join("calibrations", name+".toml"))
+	return b, err == nil
+}
+
+// LoadCalibration reads a calibration file, or selects the calibration
+// built in for an embedded profile when nameOrPath is that profile's name
+// (an argument that holds a "/" or ends in ".toml" is always a path).
+func LoadCalibration(nameOrPath string) (*Calibration, error) {
+	if !strings.ContainsRune(nameOrPath, '/') && !strings.HasSuffix(nameOrPath, ".toml") {
+		if b, ok := EmbeddedCalibrationText(nameOrPath); ok {
+			return ParseCalibration(EmbeddedPrefix+nameOrPath, b)
+		}
+	}
+	b, err := os.ReadFile(nameOrPath)
 	if err != nil {
 		return nil, err
 	}
-	return ParseCalibration(path, b)
+	return ParseCalibration(nameOrPath, b)
 }
 
 // ParseCalibration decodes and checks a calibration's TOML text; faults are

@@ -132,7 +132,7 @@ func TestLeverSpecErrors(t *testing.T) {
 // TestCalibrationFileRoundTrip: a calibration written and read back is the
 // same, the write keeps a backup, and a bad file names its line.
 func TestCalibrationFileRoundTrip(t *testing.T) {
-	cal, err := LoadCalibration("../testdata/calibrations/demo.toml")
+	cal, err := LoadCalibration("demo")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -185,9 +185,9 @@ func TestCalibrationFileRoundTrip(t *testing.T) {
 // FuzzParseCalibration: no input panics the parser; what it accepts maps
 // every raw count to a finite TLA and back.
 func FuzzParseCalibration(f *testing.F) {
-	b, err := os.ReadFile("../testdata/calibrations/demo.toml")
-	if err != nil {
-		f.Fatal(err)
+	b, ok := EmbeddedCalibrationText("demo")
+	if !ok {
+		f.Fatal("no embedded demo calibration")
 	}
 	f.Add(b)
 	f.Fuzz(func(t *testing.T, doc []byte) {

@@ -128,7 +128,7 @@ func TestGateHysteresis(t *testing.T) {
 
 func demoModel(t testing.TB, profile string) *Model {
 	t.Helper()
-	m, err := LoadModel(profile, "../testdata/calibrations/"+profile+".toml")
+	m, err := LoadModel(profile, profile)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -442,7 +442,7 @@ func TestHolderReloadRace(t *testing.T) {
 	}
 	for range 20 {
 		if err := h.Reload(func() (*Model, error) {
-			return LoadModel("demo", "../testdata/calibrations/demo.toml")
+			return LoadModel("demo", "demo")
 		}); err != nil {
 			t.Fatal(err)
 		}

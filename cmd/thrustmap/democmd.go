@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -45,11 +46,13 @@ type demoResults struct {
 }
 
 type demoProfileResults struct {
-	Profile string       `json:"profile"`
-	Name    string       `json:"name"`
-	Field   []targetJSON `json:"field_targets"`
-	Assumed []targetJSON `json:"assumed_temperature_sweep,omitempty"`
-	Cruise  []targetJSON `json:"cruise_targets"`
+	Profile  string       `json:"profile"`
+	Name     string       `json:"name"`
+	Field    []targetJSON `json:"field_targets"`
+	Assumed  []targetJSON `json:"assumed_temperature_sweep,omitempty"`
+	Lever    []leverJSON  `json:"lever_samples"`
+	SplitDeg float64      `json:"lever_split_deg"`
+	Cruise   []targetJSON `json:"cruise_targets"`
 }
 
 func newDemoCmd() *cobra.Command {
@@ -136,6 +139,13 @@ func runDemo(w io.Writer) (demoResults, error) {
 			pr.Assumed = demoAssumed(w, p, a.Ratings[0], ground, s.assumedSweep)
 		}
 
+		ground.AssumedSet, ground.AssumedC = p.AssumedTemperature() != nil, s.oatC+14
+		lever, split, err := demoLever(w, name, ground)
+		if err != nil {
+			return results, err
+		}
+		pr.Lever, pr.SplitDeg = lever, split
+
 		cruise := thrustmap.Conditions{AltitudeFt: s.cruiseAltFt, OATC: cruiseISA + s.cruiseISADev, Mach: s.cruiseMach}
 		fmt.Fprintf(w, "\nIn cruise: FL%.0f, ISA%+.0f (OAT %.1f °C), Mach %.2f\n\n", s.cruiseAltFt/100, s.cruiseISADev, cruise.OATC, s.cruiseMach)
 		pr.Cruise = demoTable(w, p, cruise, nil, s.cruiseMach)
@@ -181,6 +191,61 @@ func demoTable(w io.Writer, p *thrustmap.Profile, c thrustmap.Conditions, bleeds
 	}
 	tw.Flush()
 	return out
+}
+
+// demoLever runs raw counts of lever 1 of the profile's built-in
+// calibration through the whole chain, resting at each gate and halfway
+// between, and sets lever 2 by eye to the climb gate to show the split.
+func demoLever(w io.Writer, name string, c thrustmap.Conditions) ([]leverJSON, float64, error) {
+	m, err := thrustmap.LoadModel(name, name)
+	if err != nil {
+		return nil, 0, err
+	}
+	l := m.Calibration().Lever(1)
+	what := "on the ground"
+	if c.AssumedSet {
+		what += fmt.Sprintf(", assumed temperature %.0f °C", c.AssumedC)
+	}
+	fmt.Fprintf(w, "\nThrust lever 1 (built-in calibration, %s): raw counts to %s\n\n", what, m.Profile().Parameter())
+	var samples []float64
+	gates := m.Profile().Gates()
+	for i, g := range gates {
+		raw, _ := l.Raw(g.TLADeg)
+		samples = append(samples, raw)
+		if i+1 < len(gates) {
+			mid, _ := l.Raw((g.TLADeg + gates[i+1].TLADeg) / 2)
+			samples = append(samples, mid)
+		}
+	}
+	var state thrustmap.LeverState
+	var out []leverJSON
+	for _, raw := range samples {
+		cmd, err := m.Command(&state, 1, math.Round(raw), c)
+		if err != nil {
+			return nil, 0, err
+		}
+		out = append(out, newLeverJSON(m, cmd))
+	}
+	printLever(w, out)
+	// Lever 2 of the quadrant set to the climb gate by eye, 0.6° short.
+	var s2 thrustmap.LeverState
+	climb := gates[len(gates)/2].TLADeg
+	for _, g := range gates {
+		if g.Name == "climb" {
+			climb = g.TLADeg
+		}
+	}
+	raw2, _ := m.Calibration().Lever(2).Raw(climb - 0.6)
+	raw1, _ := l.Raw(climb)
+	a, _ := m.Command(&state, 1, math.Round(raw1), c)
+	b, err := m.Command(&s2, 2, math.Round(raw2), c)
+	if err != nil {
+		return nil, 0, err
+	}
+	split := thrustmap.Split(a, b)
+	fmt.Fprintf(w, "\nlevers 1 and 2 at %q: split %.1f° (%s vs %s)\n", m.GateName(a.Gate), split,
+		formatValue(a.Value, a.Unit()), formatValue(b.Value, b.Unit()))
+	return out, split, nil
 }
 
 // demoAssumed prints the reduced takeoff over a sweep of assumed temperatures.

@@ -1,0 +1,246 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"strconv"
+	"strings"
+	"text/tabwriter"
+
+	"github.com/spf13/cobra"
+
+	"github.com/thrustmap/thrustmap/thrustmap"
+)
+
+// leverJSON is one lever sample in the lever command's JSON (design brief §4a).
+type leverJSON struct {
+	Lever     int       `json:"lever"`
+	Raw       float64   `json:"raw"`
+	TLADeg    float64   `json:"tla_deg"`
+	Gate      *string   `json:"gate"`
+	Between   *[]string `json:"between"`
+	Fraction  *float64  `json:"fraction"`
+	Value     float64   `json:"value"`
+	Parameter string    `json:"parameter"`
+	Unit      string    `json:"unit"`
+	Reverse   bool      `json:"reverse"`
+	Clamped   []string  `json:"clamped"`
+	Flags     []string  `json:"flags"`
+}
+
+func newLeverJSON(m *thrustmap.Model, cmd thrustmap.LeverCommand) leverJSON {
+	out := leverJSON{Lever: cmd.Lever, Raw: cmd.Raw, TLADeg: cmd.TLADeg, Value: cmd.Value,
+		Parameter: cmd.Parameter.String(), Unit: cmd.Unit(), Reverse: cmd.Reverse,
+		Clamped: cmd.Clamped.Names(), Flags: cmd.Flags.Names()}
+	if cmd.Gate >= 0 {
+		name := m.GateName(cmd.Gate)
+		out.Gate = &name
+	}
+	if cmd.Between() {
+		pair := []string{m.GateName(cmd.Lower), m.GateName(cmd.Upper)}
+		f := cmd.Fraction
+		out.Between, out.Fraction = &pair, &f
+	}
+	return out
+}
+
+// parseList reads a comma-separated list of numbers.
+func parseList(flag, s string) ([]float64, error) {
+	var out []float64
+	for _, f := range strings.Split(s, ",") {
+		f = strings.TrimSpace(f)
+		v, err := strconv.ParseFloat(f, 64)
+		if err != nil || !finiteFloat(v) {
+			return nil, fmt.Errorf("%s: %q is not a number", flag, f)
+		}
+		out = append(out, v)
+	}
+	return out, nil
+}
+
+func finiteFloat(v float64) bool { return v-v == 0 }
+
+func newLeverCmd() *cobra.Command {
+	var cf conditionFlags
+	var profile, cal, raws string
+	var lever int
+	var asJSON bool
+	cmd := &cobra.Command{
+		Use:   "lever -p PROFILE -c CAL --lever N --raw R[,R,...] --alt ALT --oat T [--mach M] [--bleed NAME]... [--assumed T] [--on-ground]",
+		Short: "Engine commands from raw lever counts",
+		Long: `lever maps raw lever counts through the lever's calibration to the thrust-lever
+angle, the detent gate and the engine command at the given conditions. The
+samples are processed in order through one lever state, so the deadband and the
+gate hysteresis act as they would on a live lever. -c takes a calibration file
+or the name of an embedded demo profile for its built-in calibration.
+
+For each sample: the TLA, the reported gate (held through its hysteresis band),
+the two gates interpolated between and the fraction, the command, whether the
+lever is in reverse, what was clamped (table axes; raw beyond the calibrated
+points; device beyond the device range) and flags (raised, limited, interlock,
+fallback).
+
+` + safetyNote,
+		Args: cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, _ []string) error {
+			if profile == "" || cal == "" {
+				return fmt.Errorf("-p PROFILE and -c CAL are required")
+			}
+			if raws == "" {
+				return fmt.Errorf("--raw R[,R,...] is required")
+			}
+			samples, err := parseList("--raw", raws)
+			if err != nil {
+				return err
+			}
+			m, err := thrustmap.LoadModel(profile, cal)
+			if err != nil {
+				return err
+			}
+			c, _, err := cf.conditions(m.Profile())
+			if err != nil {
+				return err
+			}
+			if m.Calibration().Lever(lever) == nil {
+				return fmt.Errorf("--lever: %s has no lever %d (levers: %s)", m.Calibration().Source(), lever, leverIDs(m.Calibration()))
+			}
+			var state thrustmap.LeverState
+			var out []leverJSON
+			for _, raw := range samples {
+				res, err := m.Command(&state, lever, raw, c)
+				if err != nil {
+					return err
+				}
+				out = append(out, newLeverJSON(m, res))
+			}
+			if asJSON {
+				return writeJSON(cmd.OutOrStdout(), out)
+			}
+			printLever(cmd.OutOrStdout(), out)
+			return nil
+		},
+	}
+	cmd.Flags().StringVarP(&profile, "profile", "p", "", "profile file or embedded profile name")
+	cmd.Flags().StringVarP(&cal, "cal", "c", "", "calibration file (or an embedded profile's name)")
+	cmd.Flags().IntVar(&lever, "lever", 1, "lever id in the calibration")
+	cmd.Flags().StringVar(&raws, "raw", "", "raw counts, comma-separated, processed in order")
+	cf.register(cmd.Flags(), true)
+	cmd.Flags().BoolVar(&asJSON, "json", false, "print JSON")
+	return cmd
+}
+
+func leverIDs(cal *thrustmap.Calibration) string {
+	var ids []string
+	for _, l := range cal.Levers() {
+		ids = append(ids, strconv.Itoa(l.ID()))
+	}
+	return strings.Join(ids, ", ")
+}
+
+func printLever(w io.Writer, rows []leverJSON) {
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	if len(rows) > 0 {
+		fmt.Fprintf(tw, "raw\tTLA°\tgate\tbetween\t%s\tnotes\n", rows[0].Parameter)
+	}
+	for _, r := range rows {
+		gate, between := "-", "-"
+		if r.Gate != nil {
+			gate = *r.Gate
+		}
+		if r.Between != nil {
+			between = fmt.Sprintf("%s–%s %.2f", (*r.Between)[0], (*r.Between)[1], *r.Fraction)
+		}
+		var notes []string
+		if r.Reverse {
+			notes = append(notes, "reverse")
+		}
+		notes = append(notes, r.Flags...)
+		for _, c := range r.Clamped {
+			notes = append(notes, "clamped:"+c)
+		}
+		fmt.Fprintf(tw, "%g\t%.2f\t%s\t%s\t%s\t%s\n", r.Raw, r.TLADeg, gate, between, formatValue(r.Value, r.Unit), strings.Join(notes, " "))
+	}
+	tw.Flush()
+}
+
+func newLeverRawCmd() *cobra.Command {
+	var profile, cal, tlas string
+	var lever int
+	var asJSON bool
+	cmd := &cobra.Command{
+		Use:   "lever-raw -c CAL --lever N (--tla DEG[,DEG,...] | -p PROFILE)",
+		Short: "Raw counts for lever angles: where to mark notches or drive a motorised lever",
+		Long: `lever-raw inverts a lever's calibration: the raw count at each given lever angle,
+or with -p at each gate of the profile.
+
+` + safetyNote,
+		Args: cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, _ []string) error {
+			if cal == "" {
+				return fmt.Errorf("-c CAL is required")
+			}
+			c, err := thrustmap.LoadCalibration(cal)
+			if err != nil {
+				return err
+			}
+			l := c.Lever(lever)
+			if l == nil {
+				return fmt.Errorf("--lever: %s has no lever %d (levers: %s)", c.Source(), lever, leverIDs(c))
+			}
+			type row struct {
+				Gate    string  `json:"gate,omitempty"`
+				TLADeg  float64 `json:"tla_deg"`
+				Raw     float64 `json:"raw"`
+				Clamped bool    `json:"clamped"`
+			}
+			var rows []row
+			switch {
+			case tlas != "" && profile != "":
+				return fmt.Errorf("give --tla or -p, not both")
+			case tlas != "":
+				angles, err := parseList("--tla", tlas)
+				if err != nil {
+					return err
+				}
+				for _, a := range angles {
+					raw, clamped := l.Raw(a)
+					rows = append(rows, row{TLADeg: a, Raw: raw, Clamped: clamped})
+				}
+			case profile != "":
+				p, err := thrustmap.LoadProfile(profile)
+				if err != nil {
+					return err
+				}
+				for _, g := range p.Gates() {
+					raw, clamped := l.Raw(g.TLADeg)
+					rows = append(rows, row{Gate: g.Name, TLADeg: g.TLADeg, Raw: raw, Clamped: clamped})
+				}
+			default:
+				return fmt.Errorf("give --tla DEG[,DEG,...] or -p PROFILE")
+			}
+			if asJSON {
+				return writeJSON(cmd.OutOrStdout(), rows)
+			}
+			tw := tabwriter.NewWriter(cmd.OutOrStdout(), 0, 0, 2, ' ', 0)
+			fmt.Fprintln(tw, "gate\tTLA°\traw\t")
+			for _, r := range rows {
+				note := ""
+				if r.Clamped {
+					note = "beyond the calibrated range: held at the end point"
+				}
+				gate := r.Gate
+				if gate == "" {
+					gate = "-"
+				}
+				fmt.Fprintf(tw, "%s\t%.2f\t%.1f\t%s\n", gate, r.TLADeg, r.Raw, note)
+			}
+			return tw.Flush()
+		},
+	}
+	cmd.Flags().StringVarP(&profile, "profile", "p", "", "profile whose gates to locate")
+	cmd.Flags().StringVarP(&cal, "cal", "c", "", "calibration file (or an embedded profile's name)")
+	cmd.Flags().IntVar(&lever, "lever", 1, "lever id in the calibration")
+	cmd.Flags().StringVar(&tlas, "tla", "", "lever angles in degrees, comma-separated")
+	cmd.Flags().BoolVar(&asJSON, "json", false, "print JSON")
+	return cmd
+}
