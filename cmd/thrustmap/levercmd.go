@@ -26,6 +26,9 @@ type leverJSON struct {
 	Reverse   bool      `json:"reverse"`
 	Clamped   []string  `json:"clamped"`
 	Flags     []string  `json:"flags"`
+	// SplitDeg is the spread of TLA across the levers at this sample index,
+	// present when several levers are given.
+	SplitDeg *float64 `json:"split_deg,omitempty"`
 }
 
 func newLeverJSON(m *thrustmap.Model, cmd thrustmap.LeverCommand) leverJSON {
@@ -62,8 +65,9 @@ func finiteFloat(v float64) bool { return v-v == 0 }
 
 func newLeverCmd() *cobra.Command {
 	var cf conditionFlags
-	var profile, cal, raws string
-	var lever int
+	var profile, cal string
+	var raws []string
+	var levers []int
 	var asJSON bool
 	cmd := &cobra.Command{
 		Use:   "lever -p PROFILE -c CAL --lever N --raw R[,R,...] --alt ALT --oat T [--mach M] [--bleed NAME]... [--assumed T] [--on-ground]",
@@ -80,18 +84,34 @@ lever is in reverse, what was clamped (table axes; raw beyond the calibrated
 points; device beyond the device range) and flags (raised, limited, interlock,
 fallback).
 
+Several levers: repeat --lever and --raw in pairs (--lever 1 --raw ... --lever 2
+--raw ...); samples at the same index are taken together and the split, the
+spread of their lever angles, is reported.
+
 ` + safetyNote,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
 			if profile == "" || cal == "" {
 				return fmt.Errorf("-p PROFILE and -c CAL are required")
 			}
-			if raws == "" {
+			if len(raws) == 0 {
 				return fmt.Errorf("--raw R[,R,...] is required")
 			}
-			samples, err := parseList("--raw", raws)
-			if err != nil {
-				return err
+			if len(levers) == 0 {
+				levers = []int{1}
+			}
+			if len(levers) != len(raws) {
+				return fmt.Errorf("give one --raw list per --lever (%d levers, %d raw lists)", len(levers), len(raws))
+			}
+			samples := make([][]float64, len(raws))
+			for i, r := range raws {
+				var err error
+				if samples[i], err = parseList("--raw", r); err != nil {
+					return err
+				}
+				if len(samples[i]) != len(samples[0]) {
+					return fmt.Errorf("--raw: lever %d has %d samples, lever %d has %d: several levers need as many each", levers[i], len(samples[i]), levers[0], len(samples[0]))
+				}
 			}
 			m, err := thrustmap.LoadModel(profile, cal)
 			if err != nil {
@@ -101,17 +121,30 @@ fallback).
 			if err != nil {
 				return err
 			}
-			if m.Calibration().Lever(lever) == nil {
-				return fmt.Errorf("--lever: %s has no lever %d (levers: %s)", m.Calibration().Source(), lever, leverIDs(m.Calibration()))
-			}
-			var state thrustmap.LeverState
-			var out []leverJSON
-			for _, raw := range samples {
-				res, err := m.Command(&state, lever, raw, c)
-				if err != nil {
-					return err
+			for _, id := range levers {
+				if m.Calibration().Lever(id) == nil {
+					return fmt.Errorf("--lever: %s has no lever %d (levers: %s)", m.Calibration().Source(), id, leverIDs(m.Calibration()))
 				}
-				out = append(out, newLeverJSON(m, res))
+			}
+			states := make([]thrustmap.LeverState, len(levers))
+			var out []leverJSON
+			for k := range samples[0] {
+				var at []thrustmap.LeverCommand
+				for i, id := range levers {
+					res, err := m.Command(&states[i], id, samples[i][k], c)
+					if err != nil {
+						return err
+					}
+					at = append(at, res)
+				}
+				for _, res := range at {
+					row := newLeverJSON(m, res)
+					if len(levers) > 1 {
+						split := thrustmap.Split(at...)
+						row.SplitDeg = &split
+					}
+					out = append(out, row)
+				}
 			}
 			if asJSON {
 				return writeJSON(cmd.OutOrStdout(), out)
@@ -122,8 +155,8 @@ fallback).
 	}
 	cmd.Flags().StringVarP(&profile, "profile", "p", "", "profile file or embedded profile name")
 	cmd.Flags().StringVarP(&cal, "cal", "c", "", "calibration file (or an embedded profile's name)")
-	cmd.Flags().IntVar(&lever, "lever", 1, "lever id in the calibration")
-	cmd.Flags().StringVar(&raws, "raw", "", "raw counts, comma-separated, processed in order")
+	cmd.Flags().IntSliceVar(&levers, "lever", nil, "lever id in the calibration (default 1; repeat for several levers)")
+	cmd.Flags().StringArrayVar(&raws, "raw", nil, "raw counts, comma-separated, processed in order (one list per --lever)")
 	cf.register(cmd.Flags(), true)
 	cmd.Flags().BoolVar(&asJSON, "json", false, "print JSON")
 	return cmd
@@ -140,7 +173,7 @@ func leverIDs(cal *thrustmap.Calibration) string {
 func printLever(w io.Writer, rows []leverJSON) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	if len(rows) > 0 {
-		fmt.Fprintf(tw, "raw\tTLA°\tgate\tbetween\t%s\tnotes\n", rows[0].Parameter)
+		fmt.Fprintf(tw, "lever\traw\tTLA°\tgate\tbetween\t%s\tnotes\n", rows[0].Parameter)
 	}
 	for _, r := range rows {
 		gate, between := "-", "-"
@@ -158,7 +191,10 @@ func printLever(w io.Writer, rows []leverJSON) {
 		for _, c := range r.Clamped {
 			notes = append(notes, "clamped:"+c)
 		}
-		fmt.Fprintf(tw, "%g\t%.2f\t%s\t%s\t%s\t%s\n", r.Raw, r.TLADeg, gate, between, formatValue(r.Value, r.Unit), strings.Join(notes, " "))
+		if r.SplitDeg != nil {
+			notes = append(notes, fmt.Sprintf("split %.2f°", *r.SplitDeg))
+		}
+		fmt.Fprintf(tw, "%d\t%g\t%.2f\t%s\t%s\t%s\t%s\n", r.Lever, r.Raw, r.TLADeg, gate, between, formatValue(r.Value, r.Unit), strings.Join(notes, " "))
 	}
 	tw.Flush()
 }
