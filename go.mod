@@ -1,6 +1,6 @@
 module github.com/thrustmap/thrustmap
 
-go 1.26
+go 1.26.0
 
 require (
 	github.com/pelletier/go-toml/v2 v2.4.3
@@ -13,6 +13,8 @@ require (
 require (
 	github.com/expr-lang/expr v1.17.8 // indirect
 	github.com/inconshreveable/mousetrap v1.1.0 // indirect
-	golang.org/x/sys v0.30.0 // indirect
+	go.bug.st/serial v1.8.0 // indirect
+	golang.org/x/sys v0.50.0 // indirect
+	golang.org/x/term v0.48.0 // indirect
 	golang.org/x/tools v0.30.0 // indirect
 )
