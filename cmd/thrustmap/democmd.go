@@ -16,6 +16,7 @@ import (
 	"github.com/thrustmap/thrustmap/thrustmap/atmos"
 	"github.com/thrustmap/thrustmap/thrustmap/atomicfile"
 	"github.com/thrustmap/thrustmap/thrustmap/grid"
+	"github.com/thrustmap/thrustmap/thrustmap/sweep"
 )
 
 // The demo scenario: a departure from an invented hot, high field, then
@@ -46,13 +47,14 @@ type demoResults struct {
 }
 
 type demoProfileResults struct {
-	Profile  string       `json:"profile"`
-	Name     string       `json:"name"`
-	Field    []targetJSON `json:"field_targets"`
-	Assumed  []targetJSON `json:"assumed_temperature_sweep,omitempty"`
-	Lever    []leverJSON  `json:"lever_samples"`
-	SplitDeg float64      `json:"lever_split_deg"`
-	Cruise   []targetJSON `json:"cruise_targets"`
+	Profile  string          `json:"profile"`
+	Name     string          `json:"name"`
+	Field    []targetJSON    `json:"field_targets"`
+	Assumed  []targetJSON    `json:"assumed_temperature_sweep,omitempty"`
+	Lever    []leverJSON     `json:"lever_samples"`
+	SplitDeg float64         `json:"lever_split_deg"`
+	Sweep    *sweepLeverJSON `json:"sweep,omitempty"`
+	Cruise   []targetJSON    `json:"cruise_targets"`
 }
 
 func newDemoCmd() *cobra.Command {
@@ -145,6 +147,13 @@ func runDemo(w io.Writer) (demoResults, error) {
 			return results, err
 		}
 		pr.Lever, pr.SplitDeg = lever, split
+		if name == "demo" {
+			sw, err := demoSweep(w, p)
+			if err != nil {
+				return results, err
+			}
+			pr.Sweep = &sw
+		}
 
 		cruise := thrustmap.Conditions{AltitudeFt: s.cruiseAltFt, OATC: cruiseISA + s.cruiseISADev, Mach: s.cruiseMach}
 		fmt.Fprintf(w, "\nIn cruise: FL%.0f, ISA%+.0f (OAT %.1f °C), Mach %.2f\n\n", s.cruiseAltFt/100, s.cruiseISADev, cruise.OATC, s.cruiseMach)
@@ -246,6 +255,39 @@ func demoLever(w io.Writer, name string, c thrustmap.Conditions) ([]leverJSON, f
 	fmt.Fprintf(w, "\nlevers 1 and 2 at %q: split %.1f° (%s vs %s)\n", m.GateName(a.Gate), split,
 		formatValue(a.Value, a.Unit()), formatValue(b.Value, b.Unit()))
 	return out, split, nil
+}
+
+// demoSweep calibrates lever 1 from an invented recording made from the
+// built-in calibration (noise, backlash and a dead spot added) and compares
+// the notches found with the points the recording was made from.
+func demoSweep(w io.Writer, p *thrustmap.Profile) (sweepLeverJSON, error) {
+	cal, err := thrustmap.LoadCalibration("demo")
+	if err != nil {
+		return sweepLeverJSON{}, err
+	}
+	var truth []float64
+	for _, pt := range cal.Lever(1).Spec().Points {
+		truth = append(truth, pt[0])
+	}
+	cfg := sweep.SynthConfig{SampleHz: 200, DwellMs: 1500, CountsPerSec: 600, Passes: 2, Bits: 12, Seed: 7,
+		Levers: []sweep.SynthLever{{ID: 1, Notches: truth, NoiseSigma: 3, Backlash: 8, Taper: 0.15, DeadSpots: [][2]float64{{2000, 2040}}}}}
+	an := sweep.NewAnalyzer(sweep.Options{})
+	cfg.Visit(an.Add)
+	sc, _ := an.Scan(1)
+	res, err := sweep.Calibrate(p, sc, sweep.CalOptions{RawMin: 0, RawMax: 4095, HasRange: true})
+	if err != nil {
+		return sweepLeverJSON{}, err
+	}
+	fmt.Fprintf(w, "\nSweep calibration of lever 1 from an invented recording (%d samples: noise σ 3, backlash 8, a dead spot at 2000–2040)\n\n", sc.Samples)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "gate\tTLA°\tfound raw\ttrue raw\t")
+	for i, n := range res.Notches {
+		fmt.Fprintf(tw, "%s\t%.0f\t%.1f\t%.0f\t\n", n.Gate, n.TLADeg, n.Raw, truth[i])
+	}
+	tw.Flush()
+	fmt.Fprintf(w, "noise σ %.2f counts, backlash %.1f counts, %d jump(s) at the dead spot; deadband %g counts, capture floor %.2f°\n",
+		sc.NoiseSigma, res.BacklashCounts, sc.JumpCount, res.Spec.Deadband, res.Spec.MinCaptureDeg)
+	return newSweepLeverJSON(sc, res), nil
 }
 
 // demoAssumed prints the reduced takeoff over a sweep of assumed temperatures.
