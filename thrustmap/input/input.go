@@ -27,9 +27,9 @@ type Reader interface {
 
 // Skipped is a line or record the reader could not use.
 type Skipped struct {
-	Line   int    // 1-based line (record index for binary input)
-	Text   string // the line as read, shortened when long
-	Reason string // what was wrong, and what was expected
+	Line   int    `json:"line"`   // 1-based line (record index for binary input)
+	Text   string `json:"text"`   // the line as read, shortened when long
+	Reason string `json:"reason"` // what was wrong, and what was expected
 }
 
 // String prints "line N: reason: text".
