@@ -70,7 +70,7 @@ func TestChecks(t *testing.T) {
 		"check x == 187",
 		`expect-error "unknown rating" target nope`,
 		`expect-error "unknown rating" target takeoff`, // fails: no error
-		"check on_ground",                             // fails
+		"check on_ground",                              // fails
 	}, "\n")
 	if err := in.Run(strings.NewReader(src), "c.tm"); err != nil {
 		t.Fatal(err)
