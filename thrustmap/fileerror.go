@@ -15,6 +15,7 @@ type FileError struct {
 	File string
 	Line int
 	Key  string
+	Code string // a stable code for the kind of fault (see the Check constants)
 	Err  error
 }
 
@@ -64,17 +65,40 @@ const maxFileErrors = 20
 
 // collector gathers the faults of one file with their lines.
 type collector struct {
-	file  string
-	lines keyLines
-	errs  FileErrors
+	file   string
+	lines  keyLines
+	errs   FileErrors
+	broken map[string]bool // ratings that failed to build: references to them are not faults of their own
 }
+
+// Stable codes of the faults that stop a file loading; the data verifier
+// reports them as findings with these codes.
+const (
+	CheckSyntax      = "toml_syntax"      // not valid TOML
+	CheckUnknownKey  = "unknown_key"      // a key the format does not have
+	CheckWrongType   = "wrong_type"       // a value of the wrong type
+	CheckAxisOrder   = "axis_order"       // an axis not strictly increasing
+	CheckNotFinite   = "value_not_finite" // NaN or infinity
+	CheckBounds      = "value_bounds"     // outside the parameter's physical range
+	CheckGridShape   = "grid_shape"       // values that do not match their axes
+	CheckReference   = "unknown_name"     // a rating, bleed or gate that is not declared
+	CheckGateOrder   = "gate_order"       // gates not in increasing TLA
+	CheckGateSpacing = "gate_spacing"     // capture zones too close (design brief §2)
+	CheckExpression  = "expression"       // a gate expression that does not compile
+	CheckInvalid     = "invalid"          // any other fault
+)
 
 // add records a fault at key path key.
 func (c *collector) add(key, format string, args ...any) {
+	c.addCode(CheckInvalid, key, format, args...)
+}
+
+// addCode records a fault with its stable code.
+func (c *collector) addCode(code, key, format string, args ...any) {
 	if len(c.errs) >= maxFileErrors {
 		return
 	}
-	c.errs = append(c.errs, &FileError{File: c.file, Line: c.lines.line(key), Key: key, Err: fmt.Errorf(format, args...)})
+	c.errs = append(c.errs, &FileError{File: c.file, Line: c.lines.line(key), Key: key, Code: code, Err: fmt.Errorf(format, args...)})
 }
 
 // err returns the faults as an error, or nil.
@@ -94,7 +118,7 @@ func tomlError(file string, err error) error {
 		for i := range strict.Errors {
 			e := &strict.Errors[i]
 			line, _ := e.Position()
-			out = append(out, &FileError{File: file, Line: line, Key: strings.Join(e.Key(), "."),
+			out = append(out, &FileError{File: file, Line: line, Key: strings.Join(e.Key(), "."), Code: CheckUnknownKey,
 				Err: errors.New("unknown key (see the file format in the design brief, §4a)")})
 			if len(out) == maxFileErrors {
 				break
@@ -105,9 +129,13 @@ func tomlError(file string, err error) error {
 	var dec *toml.DecodeError
 	if errors.As(err, &dec) {
 		line, _ := dec.Position()
-		return FileErrors{{File: file, Line: line, Key: strings.Join(dec.Key(), "."), Err: errors.New(decodeMessage(dec.Error()))}}
+		code := CheckSyntax
+		if strings.Contains(dec.Error(), "cannot decode") {
+			code = CheckWrongType
+		}
+		return FileErrors{{File: file, Line: line, Key: strings.Join(dec.Key(), "."), Code: code, Err: errors.New(decodeMessage(dec.Error()))}}
 	}
-	return FileErrors{{File: file, Err: err}}
+	return FileErrors{{File: file, Code: CheckSyntax, Err: err}}
 }
 
 // decodeMessage rewrites the decoder's type-mismatch message

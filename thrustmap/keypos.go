@@ -17,6 +17,7 @@ type keyLines map[string]int
 
 func indexKeyLines(doc []byte) keyLines {
 	lines := keyLines{}
+	nl := newlines(doc)
 	counts := map[string]int{} // array-table path → tables seen so far
 	var p unstable.Parser
 	p.Reset(doc)
@@ -45,16 +46,16 @@ func indexKeyLines(doc []byte) keyLines {
 				table += "[" + strconv.Itoa(i-1) + "]"
 			}
 			if first != nil {
-				lines[table] = lineOf(&p, first)
+				lines[table] = lineOf(nl, first)
 			}
 		case unstable.KeyValue:
-			lines.addKeyValue(&p, table, e)
+			lines.addKeyValue(nl, table, e)
 		}
 	}
 	return lines
 }
 
-func (l keyLines) addKeyValue(p *unstable.Parser, prefix string, kv *unstable.Node) {
+func (l keyLines) addKeyValue(p []int, prefix string, kv *unstable.Node) {
 	path := prefix
 	it := kv.Key()
 	line := 0
@@ -71,7 +72,7 @@ func (l keyLines) addKeyValue(p *unstable.Parser, prefix string, kv *unstable.No
 	l.addValue(p, path, kv.Value())
 }
 
-func (l keyLines) addValue(p *unstable.Parser, path string, v *unstable.Node) {
+func (l keyLines) addValue(p []int, path string, v *unstable.Node) {
 	switch v.Kind {
 	case unstable.Array:
 		it := v.Children()
@@ -96,7 +97,7 @@ func (l keyLines) addValue(p *unstable.Parser, path string, v *unstable.Node) {
 }
 
 // firstLine is the line of the first scalar inside a container node.
-func firstLine(p *unstable.Parser, n *unstable.Node) int {
+func firstLine(p []int, n *unstable.Node) int {
 	it := n.Children()
 	for it.Next() {
 		c := it.Node()
@@ -110,11 +111,34 @@ func firstLine(p *unstable.Parser, n *unstable.Node) int {
 	return 0
 }
 
-func lineOf(p *unstable.Parser, n *unstable.Node) int {
+// newlines returns the offsets of the document's newlines, in order.
+func newlines(doc []byte) []int {
+	var out []int
+	for i, b := range doc {
+		if b == '\n' {
+			out = append(out, i)
+		}
+	}
+	return out
+}
+
+// lineOf is the 1-based line a node starts on, found by binary search in
+// the newline offsets (0 for a node without a place).
+func lineOf(nl []int, n *unstable.Node) int {
 	if n.Raw.Length == 0 && n.Raw.Offset == 0 {
 		return 0
 	}
-	return p.Shape(n.Raw).Start.Line
+	off := int(n.Raw.Offset)
+	lo, hi := 0, len(nl)
+	for lo < hi {
+		mid := (lo + hi) / 2
+		if nl[mid] < off {
+			lo = mid + 1
+		} else {
+			hi = mid
+		}
+	}
+	return lo + 1
 }
 
 func joinKey(prefix, key string) string {

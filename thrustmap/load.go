@@ -12,6 +12,7 @@ import (
 
 	"github.com/pelletier/go-toml/v2"
 
+	"github.com/thrustmap/thrustmap/thrustmap/atmos"
 	"github.com/thrustmap/thrustmap/thrustmap/grid"
 )
 
@@ -71,6 +72,23 @@ type profileFile struct {
 	Limits      *limitsFile      `toml:"limits"`
 	Lever       *leverFile       `toml:"lever"`
 	Gate        []gateFile       `toml:"gate"`
+	Envelope    *envelopeFile    `toml:"envelope"`
+	Verify      *verifyFile      `toml:"verify"`
+}
+
+// envelopeFile is the declared operating envelope the data must cover.
+type envelopeFile struct {
+	AltitudeFt   []float64 `toml:"altitude_ft"`
+	TemperatureC []float64 `toml:"temperature_c"`
+	Mach         []float64 `toml:"mach"`
+	Ratings      []string  `toml:"ratings"`
+}
+
+// verifyFile holds what the data verifier checks beyond the defaults.
+type verifyFile struct {
+	// Order lists chains of ratings, each at least the next wherever both
+	// are defined, e.g. [["takeoff", "go-around", "continuous"]].
+	Order [][]string `toml:"order"`
 }
 
 type ratingFile struct {
@@ -141,7 +159,7 @@ func ParseProfile(file string, data []byte) (*Profile, error) {
 	if err := dec.Decode(&f); err != nil {
 		return nil, tomlError(file, err)
 	}
-	c := &collector{file: file, lines: indexKeyLines(data)}
+	c := &collector{file: file, lines: indexKeyLines(data), broken: map[string]bool{}}
 	p := buildProfile(c, &f)
 	if err := c.err(); err != nil {
 		return nil, err
@@ -191,7 +209,11 @@ func buildProfile(c *collector, f *profileFile) *Profile {
 		c.add("rating", "no [[rating]] tables: a profile needs at least one rating")
 	}
 	for i := range f.Rating {
-		if r := buildRating(c, fmt.Sprintf("rating[%d]", i), &f.Rating[i], param); r != nil {
+		r := buildRating(c, fmt.Sprintf("rating[%d]", i), &f.Rating[i], param)
+		if r == nil && f.Rating[i].Name != "" {
+			c.broken[f.Rating[i].Name] = true // its own faults are reported; do not echo them
+		}
+		if r != nil {
 			if _, dup := p.byName[r.name]; dup {
 				c.add(fmt.Sprintf("rating[%d].name", i), "rating %q is declared twice", r.name)
 				continue
@@ -215,7 +237,59 @@ func buildProfile(c *collector, f *profileFile) *Profile {
 		}
 	}
 	buildLever(c, f, p)
+	buildEnvelope(c, f.Envelope, p)
+	if f.Verify != nil {
+		for i, chain := range f.Verify.Order {
+			key := fmt.Sprintf("verify.order[%d]", i)
+			if len(chain) < 2 {
+				c.add(key, "has %d rating(s), want a chain of at least 2, highest first", len(chain))
+			}
+			for _, name := range chain {
+				if p.byName[name] == nil {
+					c.addCode(CheckReference, key, "names rating %q, which the profile does not declare (ratings: %s)", name, listOrNone(ratingNames(p)))
+				}
+			}
+		}
+		p.order = f.Verify.Order
+	}
 	return p
+}
+
+// buildEnvelope checks [envelope]: each range two finite, increasing numbers.
+func buildEnvelope(c *collector, f *envelopeFile, p *Profile) {
+	if f == nil {
+		return
+	}
+	e := Envelope{}
+	for _, r := range []struct {
+		key string
+		v   []float64
+		out *[2]float64
+	}{{"altitude_ft", f.AltitudeFt, &e.AltitudeFt}, {"temperature_c", f.TemperatureC, &e.OATC}, {"mach", f.Mach, &e.Mach}} {
+		if r.v == nil {
+			continue
+		}
+		if len(r.v) != 2 || !finite(r.v[0]) || !finite(r.v[1]) || !(r.v[0] <= r.v[1]) {
+			c.add("envelope."+r.key, "want [lowest, highest], two finite numbers in order")
+			continue
+		}
+		*r.out = [2]float64{r.v[0], r.v[1]}
+	}
+	if f.AltitudeFt == nil || f.TemperatureC == nil {
+		c.add("envelope", "needs altitude_ft and temperature_c ranges ([lowest, highest])")
+		return
+	}
+	for i, name := range f.Ratings {
+		if p.byName[name] == nil && !c.broken[name] {
+			c.addCode(CheckReference, fmt.Sprintf("envelope.ratings[%d]", i), "names rating %q, which the profile does not declare (ratings: %s)", name, listOrNone(ratingNames(p)))
+		}
+	}
+	e.Ratings = append([]string(nil), f.Ratings...)
+	if e.AltitudeFt[0] < atmos.MinAltitudeFt || e.AltitudeFt[1] > atmos.MaxAltitudeFt {
+		c.add("envelope.altitude_ft", "runs outside the standard atmosphere (%.0f to %.0f ft)", atmos.MinAltitudeFt, atmos.MaxAltitudeFt)
+		return
+	}
+	p.envelope = &e
 }
 
 // buildRating checks one [[rating]] table; it returns nil when the rating
@@ -304,10 +378,10 @@ func axesOf(c *collector, key string, alt, temp, mach []float64) [grid.NumAxes][
 		for i, x := range xs {
 			switch {
 			case math.IsNaN(x) || math.IsInf(x, 0):
-				c.add(fmt.Sprintf("%s[%d]", k, i), "is not a finite number")
+				c.addCode(CheckNotFinite, fmt.Sprintf("%s[%d]", k, i), "is not a finite number")
 				bad = true
 			case i > 0 && !(x > xs[i-1]):
-				c.add(fmt.Sprintf("%s[%d]", k, i), "is %g, not above the point before it (%g): an axis must be strictly increasing", x, xs[i-1])
+				c.addCode(CheckAxisOrder, fmt.Sprintf("%s[%d]", k, i), "is %g, not above the point before it (%g): an axis must be strictly increasing", x, xs[i-1])
 				bad = true
 			}
 		}
@@ -362,12 +436,12 @@ func flatten(c *collector, key string, v any, shape []int, names []string, flat 
 		x, ok := number(v)
 		switch {
 		case !ok:
-			c.add(key, "is %s, want a number", typeName(v))
+			c.addCode(CheckGridShape, key, "is %s, want a number", typeName(v))
 		case math.IsNaN(x) || math.IsInf(x, 0):
-			c.add(key, "is not a finite number")
+			c.addCode(CheckNotFinite, key, "is not a finite number")
 		default:
 			if msg := check(x); msg != "" {
-				c.add(key, "%s", msg)
+				c.addCode(CheckBounds, key, "%s", msg)
 			}
 		}
 		*flat = append(*flat, x)
@@ -375,11 +449,11 @@ func flatten(c *collector, key string, v any, shape []int, names []string, flat 
 	}
 	list, ok := v.([]any)
 	if !ok {
-		c.add(key, "is %s, want an array of %d entries (one per %s point)", typeName(v), shape[0], names[0])
+		c.addCode(CheckGridShape, key, "is %s, want an array of %d entries (one per %s point)", typeName(v), shape[0], names[0])
 		return
 	}
 	if len(list) != shape[0] {
-		c.add(key, "has %d entries, want %d (one per %s point)", len(list), shape[0], names[0])
+		c.addCode(CheckGridShape, key, "has %d entries, want %d (one per %s point)", len(list), shape[0], names[0])
 		return
 	}
 	for i, e := range list {
@@ -414,12 +488,15 @@ func typeName(v any) string {
 // buildCorrection checks one [[correction]] and attaches it to its rating.
 func buildCorrection(c *collector, key string, f *correctionFile, p *Profile) {
 	r, ok := p.byName[f.Rating]
+	if c.broken[f.Rating] {
+		return
+	}
 	if !ok {
-		c.add(key+".rating", "names rating %q, which the profile does not declare (ratings: %s)", f.Rating, listOrNone(ratingNames(p)))
+		c.addCode(CheckReference, key+".rating", "names rating %q, which the profile does not declare (ratings: %s)", f.Rating, listOrNone(ratingNames(p)))
 	}
 	bleed := p.bleedIndex(f.Bleed)
 	if bleed < 0 {
-		c.add(key+".bleed", "names bleed %q, which the profile does not declare (bleeds: %s)", f.Bleed, listOrNone(p.bleeds))
+		c.addCode(CheckReference, key+".bleed", "names bleed %q, which the profile does not declare (bleeds: %s)", f.Bleed, listOrNone(p.bleeds))
 	}
 	corr := Correction{Bleed: bleed}
 	switch {
@@ -428,7 +505,7 @@ func buildCorrection(c *collector, key string, f *correctionFile, p *Profile) {
 		return
 	case f.Delta != nil:
 		if d := *f.Delta; math.IsNaN(d) || math.IsInf(d, 0) {
-			c.add(key+".delta", "is not a finite number")
+			c.addCode(CheckNotFinite, key+".delta", "is not a finite number")
 			return
 		}
 		corr.Delta = *f.Delta
@@ -490,8 +567,9 @@ func buildAssumed(c *collector, f *assumedFile, p *Profile) *AssumedTemperature 
 		}
 		r, ok := p.byName[name]
 		switch {
+		case c.broken[name]:
 		case !ok:
-			c.add(k, "names rating %q, which the profile does not declare (ratings: %s)", name, listOrNone(ratingNames(p)))
+			c.addCode(CheckReference, k, "names rating %q, which the profile does not declare (ratings: %s)", name, listOrNone(ratingNames(p)))
 		case !r.table.Has(grid.Temperature):
 			c.add(k, "rating %q has no temperature axis, so an assumed temperature cannot change it", name)
 		case r.assumed:
@@ -580,30 +658,30 @@ func buildLever(c *collector, f *profileFile, p *Profile) {
 		if g.Rating == "" && g.Target == "" {
 			c.add(key, "needs rating = \"NAME\" or target = \"EXPRESSION\" (or both: the rating is then the fallback)")
 		}
-		if g.Rating != "" {
+		if g.Rating != "" && !c.broken[g.Rating] {
 			if _, ok := p.byName[g.Rating]; !ok {
-				c.add(key+".rating", "names rating %q, which the profile does not declare (ratings: %s)", g.Rating, listOrNone(ratingNames(p)))
+				c.addCode(CheckReference, key+".rating", "names rating %q, which the profile does not declare (ratings: %s)", g.Rating, listOrNone(ratingNames(p)))
 			}
 		}
 		if g.Target != "" {
 			var err error
 			if ge.target, err = compileExpr(p, g.Target, false); err != nil {
-				c.add(key+".target", "expression %q: %v", g.Target, err)
+				c.addCode(CheckExpression, key+".target", "expression %q: %v", g.Target, err)
 			}
 		}
 		if g.When != "" {
 			var err error
 			if ge.when, err = compileExpr(p, g.When, true); err != nil {
-				c.add(key+".when", "expression %q: %v", g.When, err)
+				c.addCode(CheckExpression, key+".when", "expression %q: %v", g.When, err)
 			}
 		}
 		if n := len(p.gates); n > 0 {
 			lo := p.gates[n-1]
 			switch {
 			case !(gate.TLADeg > lo.TLADeg):
-				c.add(key+".tla_deg", "is %g, not above gate %q at %g: gates must be listed in increasing TLA", gate.TLADeg, lo.Name, lo.TLADeg)
+				c.addCode(CheckGateOrder, key+".tla_deg", "is %g, not above gate %q at %g: gates must be listed in increasing TLA", gate.TLADeg, lo.Name, lo.TLADeg)
 			case !(lo.TLADeg+lo.CaptureDeg+lo.HysteresisDeg < gate.TLADeg-gate.CaptureDeg):
-				c.add(key+".tla_deg", "gate %q (%g ± %g, hysteresis %g) is too close to gate %q (%g ± %g): need lo.tla + lo.capture + lo.hysteresis < hi.tla − hi.capture",
+				c.addCode(CheckGateSpacing, key+".tla_deg", "gate %q (%g ± %g, hysteresis %g) is too close to gate %q (%g ± %g): need lo.tla + lo.capture + lo.hysteresis < hi.tla − hi.capture",
 					gate.Name, gate.TLADeg, gate.CaptureDeg, gate.HysteresisDeg, lo.Name, lo.TLADeg, lo.CaptureDeg)
 			}
 		}
@@ -611,6 +689,6 @@ func buildLever(c *collector, f *profileFile, p *Profile) {
 		p.gateExprs = append(p.gateExprs, ge)
 	}
 	if l.IdleGate != "" && !slices.ContainsFunc(p.gates, func(g Gate) bool { return g.Name == l.IdleGate }) {
-		c.add("lever.idle_gate", "names gate %q, which the profile does not declare", l.IdleGate)
+		c.addCode(CheckReference, "lever.idle_gate", "names gate %q, which the profile does not declare", l.IdleGate)
 	}
 }

@@ -24,6 +24,59 @@ type Profile struct {
 	lever       Lever
 	gates       []Gate
 	gateExprs   []gateExprs // compiled target and when of gates[i]
+	envelope    *Envelope
+	order       [][]string
+}
+
+// Envelope is a profile's declared operating envelope: the conditions its
+// rating data must cover.
+type Envelope struct {
+	AltitudeFt [2]float64 // pressure altitude, lowest and highest
+	OATC       [2]float64 // outside air temperature, lowest and highest
+	Mach       [2]float64 // Mach, lowest and highest (0, 0 when not declared)
+	Ratings    []string   // the ratings that must cover it (all when empty)
+}
+
+// Envelope returns the declared envelope, or false when none is declared.
+func (p *Profile) Envelope() (Envelope, bool) {
+	if p.envelope == nil {
+		return Envelope{}, false
+	}
+	e := *p.envelope
+	e.Ratings = append([]string(nil), e.Ratings...)
+	return e, true
+}
+
+// DefaultOrder is the rating order checked when a profile declares none
+// (common practice): each at least the next wherever both are defined.
+var DefaultOrder = [][]string{
+	{"takeoff", "go-around", "continuous", "climb", "cruise", "idle"},
+	{"takeoff", "reverse"},
+}
+
+// Order returns the chains of ratings the profile declares in [verify]
+// order, or DefaultOrder restricted to its ratings.
+func (p *Profile) Order() [][]string {
+	if p.order != nil {
+		out := make([][]string, len(p.order))
+		for i, c := range p.order {
+			out[i] = append([]string(nil), c...)
+		}
+		return out
+	}
+	var out [][]string
+	for _, chain := range DefaultOrder {
+		var kept []string
+		for _, name := range chain {
+			if p.byName[name] != nil {
+				kept = append(kept, name)
+			}
+		}
+		if len(kept) >= 2 {
+			out = append(out, kept)
+		}
+	}
+	return out
 }
 
 // gateExprs are a gate's compiled expressions (nil when not given).
@@ -152,6 +205,40 @@ func (p *Profile) Lever() Lever { return p.lever }
 
 // Gates returns a copy of the gates in TLA order.
 func (p *Profile) Gates() []Gate { return append([]Gate(nil), p.gates...) }
+
+// NotchPosition is a place the physical lever rests: an end stop or a gate
+// with a notch.
+type NotchPosition struct {
+	Name   string // the gate's name, or AftStop / ForwardStop
+	TLADeg float64
+}
+
+// Names of the end stops when no notch gate sits there.
+const (
+	AftStop     = "aft-stop"
+	ForwardStop = "forward-stop"
+)
+
+// NotchPositions lists where the lever rests, in TLA order: the aft end
+// stop, the gates with notches between the stops, the forward end stop. A
+// notch gate at an end stop is that stop (design brief §2).
+func (p *Profile) NotchPositions() []NotchPosition {
+	lv := p.lever
+	aft, fwd := NotchPosition{AftStop, lv.TLAMinDeg}, NotchPosition{ForwardStop, lv.TLAMaxDeg}
+	var inner []NotchPosition
+	for _, g := range p.gates {
+		switch {
+		case !g.Notch:
+		case g.TLADeg <= lv.TLAMinDeg:
+			aft.Name = g.Name
+		case g.TLADeg >= lv.TLAMaxDeg:
+			fwd.Name = g.Name
+		default:
+			inner = append(inner, NotchPosition{g.Name, g.TLADeg})
+		}
+	}
+	return append(append([]NotchPosition{aft}, inner...), fwd)
+}
 
 // Bleeds is a set of bleed flags: bit i is the profile's bleeds[i].
 type Bleeds uint64

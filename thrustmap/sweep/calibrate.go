@@ -13,8 +13,8 @@ import (
 
 // Names of the end stops in a result when no notch gate sits there.
 const (
-	AftStop     = "aft-stop"
-	ForwardStop = "forward-stop"
+	AftStop     = thrustmap.AftStop
+	ForwardStop = thrustmap.ForwardStop
 )
 
 // Orientation says which way a lever's raw counts run.
@@ -63,36 +63,6 @@ type Result struct {
 // profile's notches and end stops.
 var ErrNotchCount = errors.New("notch count mismatch")
 
-// expected is one position the profile says the lever rests at.
-type expected struct {
-	name string
-	tla  float64
-}
-
-// expectedNotches lists the end stops and the gates with notches between
-// them, in TLA order; a notch gate at an end stop is that stop.
-func expectedNotches(p *thrustmap.Profile) []expected {
-	lv := p.Lever()
-	out := []expected{{AftStop, lv.TLAMinDeg}}
-	for _, g := range p.Gates() {
-		switch {
-		case !g.Notch:
-		case g.TLADeg <= lv.TLAMinDeg:
-			out[0].name = g.Name
-		case g.TLADeg >= lv.TLAMaxDeg:
-		default:
-			out = append(out, expected{g.Name, g.TLADeg})
-		}
-	}
-	last := expected{ForwardStop, lv.TLAMaxDeg}
-	for _, g := range p.Gates() {
-		if g.Notch && g.TLADeg >= lv.TLAMaxDeg {
-			last.name = g.Name
-		}
-	}
-	return append(out, last)
-}
-
 // cluster is the dwells at one rest position.
 type cluster struct {
 	dwells []Dwell
@@ -119,7 +89,7 @@ func Calibrate(p *thrustmap.Profile, sc Scan, o CalOptions) (Result, error) {
 	}
 	sigma := sc.NoiseSigma
 	clusters := clusterDwells(sc.Dwells, math.Max(12*sigma, 30))
-	want := expectedNotches(p)
+	want := p.NotchPositions()
 	if len(clusters) != len(want) {
 		found := make([]string, len(clusters))
 		for i, c := range clusters {
@@ -127,7 +97,7 @@ func Calibrate(p *thrustmap.Profile, sc Scan, o CalOptions) (Result, error) {
 		}
 		names := make([]string, len(want))
 		for i, w := range want {
-			names[i] = w.name
+			names[i] = w.Name
 		}
 		return res, fmt.Errorf("%w: lever %d rested at %d places (raw %s) but profile %s expects %d (%s)",
 			ErrNotchCount, sc.Lever, len(clusters), strings.Join(found, ", "), p.Source(), len(want), strings.Join(names, ", "))
@@ -160,7 +130,7 @@ func Calibrate(p *thrustmap.Profile, sc Scan, o CalOptions) (Result, error) {
 			w = want[len(want)-1-i]
 		}
 		n := notchOf(c)
-		n.Gate, n.TLADeg = w.name, w.tla
+		n.Gate, n.TLADeg = w.Name, w.TLADeg
 		inner := i > 0 && i < len(clusters)-1
 		switch {
 		case n.Directions == 2 && inner:
@@ -253,14 +223,14 @@ func notchOf(c cluster) Notch {
 
 // fitResidual is the RMS residual of a straight line through (raw, TLA)
 // pairs, as a fraction of the TLA range, for one orientation.
-func fitResidual(raws []float64, want []expected, inverted bool) float64 {
+func fitResidual(raws []float64, want []thrustmap.NotchPosition, inverted bool) float64 {
 	n := float64(len(raws))
 	var sx, sy, sxx, sxy float64
 	ys := make([]float64, len(raws))
 	for i, x := range raws {
-		y := want[i].tla
+		y := want[i].TLADeg
 		if inverted {
-			y = want[len(want)-1-i].tla
+			y = want[len(want)-1-i].TLADeg
 		}
 		ys[i] = y
 		sx, sy, sxx, sxy = sx+x, sy+y, sxx+x*x, sxy+x*y
@@ -272,7 +242,7 @@ func fitResidual(raws []float64, want []expected, inverted bool) float64 {
 		r := ys[i] - (icpt + slope*x)
 		ss += r * r
 	}
-	span := math.Abs(want[len(want)-1].tla - want[0].tla)
+	span := math.Abs(want[len(want)-1].TLADeg - want[0].TLADeg)
 	return math.Sqrt(ss/n) / span
 }
 
