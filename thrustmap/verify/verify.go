@@ -18,29 +18,29 @@ import (
 // The check codes this package adds to the load checks of thrustmap
 // (thrustmap.CheckSyntax and the rest). They are stable: scripts rely on them.
 const (
-	CheckRatingOrder       = "rating_order"            // a rating above one it should not exceed
-	CheckFallsBelowCorner  = "falls_below_corner"      // takeoff falls with temperature below the corner
-	CheckRisesPastCorner   = "rises_past_corner"       // takeoff rises with temperature past the corner
-	CheckCornerColumn      = "corner_between_columns"  // no temperature column at the corner
-	CheckOutlier           = "outlier"                 // a cell out of line with its neighbours
-	CheckEnvelope          = "envelope_not_covered"    // the declared envelope outside a grid
-	CheckCommandFalls      = "command_falls"           // the forward command falls as TLA rises
-	CheckGateRaised        = "gate_raised"             // a gate's target below its lower neighbour's
-	CheckGateAlwaysRaised  = "gate_always_raised"      // ... at every sampled condition
-	CheckExpressionFails   = "expression_fails"        // a gate expression errs or is not finite
-	CheckExpressionBounds  = "expression_bounds"       // a gate expression outside physical bounds
-	CheckAssumedMax        = "assumed_max_outside"     // max assumed temperature beyond the table
-	CheckReductionLimit    = "reduction_limit"         // max_reduction_pct above the AC 25-13 25 %
-	CheckReductionBinds    = "reduction_limit_binds"   // the thrust limit binds inside the assumed range
-	CheckEPRBelowOne       = "epr_below_one"           // a forward EPR target below 1.0
-	CheckNotchCount        = "notch_count"             // calibration points vs notch gates
-	CheckCaptureNoise      = "capture_below_noise"     // capture under 4 σ of the lever's noise
-	CheckNotchPointMissing = "notch_point_missing"     // no calibration point at a notch gate
-	CheckLeverSplit        = "lever_split"             // levers put one gate at different angles
-	CheckCalibrationLoad   = "calibration_invalid"     // the calibration does not fit the profile
-	CheckDegreesPerCount   = "degrees_per_count"       // (note) resolution at each gate
-	CheckFile              = "file"                    // the file cannot be read
-	checkInternal          = "internal"                // a bug in a check
+	CheckRatingOrder       = "rating_order"           // a rating above one it should not exceed
+	CheckFallsBelowCorner  = "falls_below_corner"     // takeoff falls with temperature below the corner
+	CheckRisesPastCorner   = "rises_past_corner"      // takeoff rises with temperature past the corner
+	CheckCornerColumn      = "corner_between_columns" // no temperature column at the corner
+	CheckOutlier           = "outlier"                // a cell out of line with its neighbours
+	CheckEnvelope          = "envelope_not_covered"   // the declared envelope outside a grid
+	CheckCommandFalls      = "command_falls"          // the forward command falls as TLA rises
+	CheckGateRaised        = "gate_raised"            // a gate's target below its lower neighbour's
+	CheckGateAlwaysRaised  = "gate_always_raised"     // ... at every sampled condition
+	CheckExpressionFails   = "expression_fails"       // a gate expression errs or is not finite
+	CheckExpressionBounds  = "expression_bounds"      // a gate expression outside physical bounds
+	CheckAssumedMax        = "assumed_max_outside"    // max assumed temperature beyond the table
+	CheckReductionLimit    = "reduction_limit"        // max_reduction_pct above the AC 25-13 25 %
+	CheckReductionBinds    = "reduction_limit_binds"  // the thrust limit binds inside the assumed range
+	CheckEPRBelowOne       = "epr_below_one"          // a forward EPR target below 1.0
+	CheckNotchCount        = "notch_count"            // calibration points vs notch gates
+	CheckCaptureNoise      = "capture_below_noise"    // capture under 4 σ of the lever's noise
+	CheckNotchPointMissing = "notch_point_missing"    // no calibration point at a notch gate
+	CheckLeverSplit        = "lever_split"            // levers put one gate at different angles
+	CheckCalibrationLoad   = "calibration_invalid"    // the calibration does not fit the profile
+	CheckDegreesPerCount   = "degrees_per_count"      // (note) resolution at each gate
+	CheckFile              = "file"                   // the file cannot be read
+	checkInternal          = "internal"               // a bug in a check
 )
 
 // Finding is one fault, with its stable check code and where it is.
