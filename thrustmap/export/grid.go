@@ -32,12 +32,12 @@ type Axis struct {
 
 // Dense is a rating sampled on a regular grid.
 type Dense struct {
-	Rating      string  `json:"rating"`
-	Parameter   string  `json:"parameter"`
-	Unit        string  `json:"unit"`
-	Temperature string  `json:"temperature"` // what the temperature axis means: OAT, TAT or ISA_DEV
-	Bleeds      []string `json:"bleeds"`     // corrections included
-	Axes        []Axis  `json:"axes"`
+	Rating      string    `json:"rating"`
+	Parameter   string    `json:"parameter"`
+	Unit        string    `json:"unit"`
+	Temperature string    `json:"temperature"` // what the temperature axis means: OAT, TAT or ISA_DEV
+	Bleeds      []string  `json:"bleeds"`      // corrections included
+	Axes        []Axis    `json:"axes"`
 	Values      []float64 `json:"-"` // flattened, first axis outermost
 	// MaxError is the largest difference between linear interpolation in
 	// this grid and the source rating, measured at the centre of every
