@@ -2,6 +2,7 @@ package thrustmap
 
 import (
 	"bytes"
+	"cmp"
 	"embed"
 	"fmt"
 	"math"
@@ -57,7 +58,7 @@ func NewLeverCalibration(spec LeverSpec) (*LeverCalibration, error) {
 	}
 	pts := slices.Clone(spec.Points)
 	spec.Points = slices.Clone(spec.Points)
-	slices.SortFunc(pts, func(a, b [2]float64) int { return cmpFloat(a[0], b[0]) })
+	slices.SortFunc(pts, func(a, b [2]float64) int { return cmp.Compare(a[0], b[0]) })
 	raws := make([]float64, len(pts))
 	tlas := make([]float64, len(pts))
 	for i, p := range pts {
@@ -78,16 +79,6 @@ func NewLeverCalibration(spec LeverSpec) (*LeverCalibration, error) {
 		return nil, fmt.Errorf("lever %d: %w", spec.ID, err)
 	}
 	return lc, nil
-}
-
-func cmpFloat(a, b float64) int {
-	switch {
-	case a < b:
-		return -1
-	case a > b:
-		return 1
-	}
-	return 0
 }
 
 // checkLeverSpec reports the first fault of a spec, naming the lever and,
@@ -114,7 +105,7 @@ func checkLeverSpec(s *LeverSpec) error {
 			continue
 		}
 		q := s.Points[i-1]
-		dr, dt := cmpFloat(p[0], q[0]), cmpFloat(p[1], q[1])
+		dr, dt := cmp.Compare(p[0], q[0]), cmp.Compare(p[1], q[1])
 		if dr == 0 || dt == 0 {
 			return bad("point %d (%g, %g) repeats the raw or the TLA of point %d (%g, %g): points must be strictly monotone", i, p[0], p[1], i-1, q[0], q[1])
 		}
@@ -189,6 +180,18 @@ func (l *LeverCalibration) Raw(tlaDeg float64) (raw float64, clamped bool) {
 		}
 	}
 	return (lo + hi) / 2, false
+}
+
+// WithPoint returns the lever's calibration with the point (raw, tlaDeg)
+// added, replacing a point at the same angle — a point measured by hand
+// between notches, where a sweep cannot see the pot's taper. The points must
+// stay strictly monotone.
+func (l *LeverCalibration) WithPoint(raw, tlaDeg float64) (*LeverCalibration, error) {
+	spec := l.Spec()
+	spec.Points = slices.DeleteFunc(spec.Points, func(p [2]float64) bool { return p[1] == tlaDeg })
+	spec.Points = append(spec.Points, [2]float64{raw, tlaDeg})
+	slices.SortFunc(spec.Points, func(a, b [2]float64) int { return cmp.Compare(a[1], b[1]) })
+	return NewLeverCalibration(spec)
 }
 
 // Calibration is the hardware calibration of a quadrant's levers, one entry

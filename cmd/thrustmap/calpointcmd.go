@@ -16,21 +16,6 @@ import (
 	"github.com/thrustmap/thrustmap/thrustmap/sweep"
 )
 
-// addPoint returns lever l's spec with the point (raw, tla) added, or
-// replacing a point at the same angle.
-func addPoint(l *thrustmap.LeverCalibration, raw, tla float64) (*thrustmap.LeverCalibration, error) {
-	spec := l.Spec()
-	spec.Points = slices.DeleteFunc(spec.Points, func(p [2]float64) bool { return p[1] == tla })
-	spec.Points = append(spec.Points, [2]float64{raw, tla})
-	slices.SortFunc(spec.Points, func(a, b [2]float64) int {
-		if a[1] < b[1] {
-			return -1
-		}
-		return 1
-	})
-	return thrustmap.NewLeverCalibration(spec)
-}
-
 func newAddPointCmd() *cobra.Command {
 	var cal string
 	var lever int
@@ -57,7 +42,7 @@ the pot. The points must stay strictly monotone.
 			if l == nil {
 				return fmt.Errorf("--lever: %s has no lever %d (levers: %s)", cal, lever, leverIDs(c))
 			}
-			nl, err := addPoint(l, raw, tla)
+			nl, err := l.WithPoint(raw, tla)
 			if err != nil {
 				return fmt.Errorf("the point (%g, %g°) does not fit: %w", raw, tla, err)
 			}

@@ -599,11 +599,7 @@ func cmdPoint(c *call) error {
 	if l == nil {
 		return fmt.Errorf("the calibration has no lever %d", id)
 	}
-	spec := l.Spec()
-	spec.Points = slices.DeleteFunc(spec.Points, func(p [2]float64) bool { return p[1] == deg })
-	spec.Points = append(spec.Points, [2]float64{raw, deg})
-	slices.SortFunc(spec.Points, func(a, b [2]float64) int { return cmpFloat(a[1], b[1]) })
-	nl, err := thrustmap.NewLeverCalibration(spec)
+	nl, err := l.WithPoint(raw, deg)
 	if err != nil {
 		return err
 	}
@@ -611,18 +607,8 @@ func cmdPoint(c *call) error {
 		return err
 	}
 	in.calEdited = true
-	in.printf("lever %d: %d points (not saved yet)\n", id, len(spec.Points))
+	in.printf("lever %d: %d points (not saved yet)\n", id, len(nl.Spec().Points))
 	return nil
-}
-
-func cmpFloat(a, b float64) int {
-	switch {
-	case a < b:
-		return -1
-	case a > b:
-		return 1
-	}
-	return 0
 }
 
 func cmdSave(c *call) error {

@@ -1,6 +1,7 @@
 package sweep
 
 import (
+	"cmp"
 	"errors"
 	"fmt"
 	"math"
@@ -140,7 +141,7 @@ func Calibrate(p *thrustmap.Profile, sc Scan, o CalOptions) (Result, error) {
 		}
 		res.Notches = append(res.Notches, n)
 	}
-	slices.SortFunc(res.Notches, func(a, b Notch) int { return cmpFloat(a.TLADeg, b.TLADeg) })
+	slices.SortFunc(res.Notches, func(a, b Notch) int { return cmp.Compare(a.TLADeg, b.TLADeg) })
 	if len(backlashes) > 0 {
 		slices.Sort(backlashes)
 		res.BacklashCounts = backlashes[len(backlashes)/2]
@@ -161,20 +162,10 @@ func Calibrate(p *thrustmap.Profile, sc Scan, o CalOptions) (Result, error) {
 	return res, nil
 }
 
-func cmpFloat(a, b float64) int {
-	switch {
-	case a < b:
-		return -1
-	case a > b:
-		return 1
-	}
-	return 0
-}
-
 // clusterDwells groups dwells whose positions lie within gap of each other.
 func clusterDwells(dwells []Dwell, gap float64) []cluster {
 	sorted := slices.Clone(dwells)
-	slices.SortFunc(sorted, func(a, b Dwell) int { return cmpFloat(a.Raw, b.Raw) })
+	slices.SortFunc(sorted, func(a, b Dwell) int { return cmp.Compare(a.Raw, b.Raw) })
 	var out []cluster
 	for _, d := range sorted {
 		if n := len(out); n > 0 && d.Raw-out[n-1].dwells[len(out[n-1].dwells)-1].Raw <= gap {
