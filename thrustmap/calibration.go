@@ -6,7 +6,6 @@ import (
 	"embed"
 	"fmt"
 	"math"
-	"os"
 	"path"
 	"slices"
 	"strconv"
@@ -279,16 +278,11 @@ func EmbeddedCalibrationText(name string) ([]byte, bool) {
 // built in for an embedded profile when nameOrPath is that profile's name
 // (an argument that holds a "/" or ends in ".toml" is always a path).
 func LoadCalibration(nameOrPath string) (*Calibration, error) {
-	if !strings.ContainsRune(nameOrPath, '/') && !strings.HasSuffix(nameOrPath, ".toml") {
-		if b, ok := EmbeddedCalibrationText(nameOrPath); ok {
-			return ParseCalibration(EmbeddedPrefix+nameOrPath, b)
-		}
-	}
-	b, err := os.ReadFile(nameOrPath)
+	src, b, err := readNamed(nameOrPath, EmbeddedCalibrationText)
 	if err != nil {
 		return nil, err
 	}
-	return ParseCalibration(nameOrPath, b)
+	return ParseCalibration(src, b)
 }
 
 // ParseCalibration decodes and checks a calibration's TOML text; faults are

@@ -43,19 +43,27 @@ func EmbeddedProfileText(name string) ([]byte, bool) {
 // nameOrPath is an embedded profile's name (an argument that holds a "/" or
 // ends in ".toml" is always a path).
 func LoadProfile(nameOrPath string) (*Profile, error) {
-	if !strings.ContainsRune(nameOrPath, '/') && !strings.HasSuffix(nameOrPath, ".toml") {
-		if b, ok := EmbeddedProfileText(nameOrPath); ok {
-			return ParseProfile(EmbeddedPrefix+nameOrPath, b)
-		}
-	}
-	b, err := os.ReadFile(nameOrPath)
+	src, b, err := readNamed(nameOrPath, EmbeddedProfileText)
 	if err != nil {
 		if os.IsNotExist(err) && !strings.ContainsAny(nameOrPath, "/.") {
 			return nil, fmt.Errorf("profile %q: no such file and no embedded profile of that name (embedded: %s)", nameOrPath, strings.Join(EmbeddedProfiles(), ", "))
 		}
 		return nil, err
 	}
-	return ParseProfile(nameOrPath, b)
+	return ParseProfile(src, b)
+}
+
+// readNamed returns the text of an embedded file when nameOrPath is a name
+// embedded finds (and holds no "/" and does not end in ".toml"), else of
+// the file at nameOrPath, with its source name for messages.
+func readNamed(nameOrPath string, embedded func(string) ([]byte, bool)) (string, []byte, error) {
+	if !strings.ContainsRune(nameOrPath, '/') && !strings.HasSuffix(nameOrPath, ".toml") {
+		if b, ok := embedded(nameOrPath); ok {
+			return EmbeddedPrefix + nameOrPath, b, nil
+		}
+	}
+	b, err := os.ReadFile(nameOrPath)
+	return nameOrPath, b, err
 }
 
 // profileFile mirrors the profile's TOML for strict decoding.

@@ -170,27 +170,33 @@ func leverIDs(cal *thrustmap.Calibration) string {
 	return strings.Join(ids, ", ")
 }
 
+// leverCells are the gate, the interpolation pair and the notes (reverse,
+// flags, clamps) of a lever sample as the text views show them.
+func leverCells(r leverJSON) (gate, between string, notes []string) {
+	gate, between = "-", "-"
+	if r.Gate != nil {
+		gate = *r.Gate
+	}
+	if r.Between != nil {
+		between = fmt.Sprintf("%s–%s %.2f", (*r.Between)[0], (*r.Between)[1], *r.Fraction)
+	}
+	if r.Reverse {
+		notes = append(notes, "reverse")
+	}
+	notes = append(notes, r.Flags...)
+	for _, c := range r.Clamped {
+		notes = append(notes, "clamped:"+c)
+	}
+	return gate, between, notes
+}
+
 func printLever(w io.Writer, rows []leverJSON) {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	if len(rows) > 0 {
 		fmt.Fprintf(tw, "lever\traw\tTLA°\tgate\tbetween\t%s\tnotes\n", rows[0].Parameter)
 	}
 	for _, r := range rows {
-		gate, between := "-", "-"
-		if r.Gate != nil {
-			gate = *r.Gate
-		}
-		if r.Between != nil {
-			between = fmt.Sprintf("%s–%s %.2f", (*r.Between)[0], (*r.Between)[1], *r.Fraction)
-		}
-		var notes []string
-		if r.Reverse {
-			notes = append(notes, "reverse")
-		}
-		notes = append(notes, r.Flags...)
-		for _, c := range r.Clamped {
-			notes = append(notes, "clamped:"+c)
-		}
+		gate, between, notes := leverCells(r)
 		if r.SplitDeg != nil {
 			notes = append(notes, fmt.Sprintf("split %.2f°", *r.SplitDeg))
 		}

@@ -469,21 +469,7 @@ func (v *watchView) draw(force bool) {
 
 // watchRow formats one lever's command in fixed-width columns.
 func watchRow(r leverJSON) string {
-	gate, between := "-", "-"
-	if r.Gate != nil {
-		gate = *r.Gate
-	}
-	if r.Between != nil {
-		between = fmt.Sprintf("%s–%s %.2f", (*r.Between)[0], (*r.Between)[1], *r.Fraction)
-	}
-	var notes []string
-	if r.Reverse {
-		notes = append(notes, "reverse")
-	}
-	notes = append(notes, r.Flags...)
-	for _, c := range r.Clamped {
-		notes = append(notes, "clamped:"+c)
-	}
+	gate, between, notes := leverCells(r)
 	line := fmt.Sprintf("%-5d  %8g  %7.2f  %s  %s  %9s  %s", r.Lever, r.Raw, r.TLADeg, padRight(gate, 18), padRight(between, 26),
 		formatValue(r.Value, r.Unit), strings.Join(notes, " "))
 	return strings.TrimRight(line, " ")
