@@ -1,0 +1,200 @@
+package main
+
+import (
+	"bufio"
+	"bytes"
+	"fmt"
+	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"runtime"
+	"strings"
+	"testing"
+
+	"github.com/thrustmap/thrustmap/thrustmap"
+)
+
+// testConditions are the conditions of the C test, each chosen to exercise
+// part of the demo profile: on the ground with reverse allowed; the reduced
+// takeoff gate (assumed temperature on the ground); in the air, where reverse
+// is interlocked; above the tables, where look-ups clamp.
+var testConditions = []thrustmap.Conditions{
+	{AltitudeFt: 0, OATC: 15, OnGround: true},
+	{AltitudeFt: 2000, OATC: 20, OnGround: true, AssumedSet: true, AssumedC: 50, Bleeds: 1 << 2},
+	{AltitudeFt: 20000, OATC: -25, Mach: 0.6, Bleeds: 1 << 0},
+	{AltitudeFt: 45000, OATC: -60, Mach: 0.8, Bleeds: 1<<0 | 1<<1},
+}
+
+// The sweep of every lever at every condition: up from rawLo to rawHi and
+// back, one count a step (so the deadband holds readings).
+const rawLo, rawHi = 200, 3900
+
+// TestCABI builds the shared library, compiles ctest/thrustmap_test.c
+// against its header and runs it: the C program checks every command of a
+// lever sweep on several threads, the targets, the error paths and close
+// against the values the Go API gives here.
+func TestCABI(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds a shared library and a C program")
+	}
+	if runtime.GOOS == "windows" {
+		t.Skip("the C test is built for ELF/Mach-O hosts; build-windows.sh cross-builds the DLL")
+	}
+	goTool, err := exec.LookPath("go")
+	if err != nil {
+		t.Skip("go tool not in PATH")
+	}
+	gcc, err := exec.LookPath("gcc")
+	if err != nil {
+		t.Skip("gcc not found: the C ABI test needs a C compiler")
+	}
+	dir := t.TempDir()
+
+	// The library, as a user builds it, with the hand-written header beside
+	// the generated one.
+	// Never -race: the race runtime cannot shadow a c-shared library (see
+	// TestCoreConcurrent, which covers the same locking under -race).
+	run(t, "", []string{"CGO_ENABLED=1"}, goTool, "build", "-buildmode=c-shared", "-o", filepath.Join(dir, "libthrustmap.so"), ".")
+	hdr, err := os.ReadFile("thrustmap.h")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "thrustmap.h"), hdr, 0o644); err != nil {
+		t.Fatal(err)
+	}
+
+	expected := filepath.Join(dir, "expected.txt")
+	writeExpected(t, expected)
+
+	bin := filepath.Join(dir, "thrustmap_test")
+	run(t, "", nil, gcc, "-Wall", "-Wextra", "-Werror", "-std=c11", "-pthread", "-I", dir,
+		"-o", bin, filepath.Join("ctest", "thrustmap_test.c"),
+		"-L", dir, "-lthrustmap", "-Wl,-rpath,"+dir, "-lm")
+	out := run(t, "", nil, bin, expected)
+	t.Logf("%s", out)
+}
+
+// run runs a command and fails the test with its output when it fails.
+func run(t *testing.T, dir string, env []string, name string, args ...string) []byte {
+	t.Helper()
+	cmd := exec.Command(name, args...)
+	cmd.Dir = dir
+	cmd.Env = append(os.Environ(), env...)
+	out, err := cmd.CombinedOutput()
+	if err != nil {
+		t.Fatalf("%s %s: %v\n%s", name, strings.Join(args, " "), err, out)
+	}
+	return out
+}
+
+// writeExpected writes the expected values of the C test from the Go API
+// (the line formats are described in ctest/thrustmap_test.c).
+func writeExpected(t *testing.T, path string) {
+	t.Helper()
+	m, err := thrustmap.LoadModel("demo", "demo")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := m.Profile()
+	var b bytes.Buffer
+	w := bufio.NewWriter(&b)
+	fmt.Fprintln(w, "# expected values of thrustmap_test.c, from the Go API (lib_test.go)")
+	for i, g := range p.Gates() {
+		fmt.Fprintf(w, "gate %d %s\n", i, g.Name)
+	}
+	for k, c := range testConditions {
+		fmt.Fprintf(w, "cond %d %.17g %.17g %.17g %d %d %d %.17g\n", k, c.AltitudeFt, c.OATC, c.Mach, uint64(c.Bleeds), b2i(c.OnGround), b2i(c.AssumedSet), c.AssumedC)
+	}
+	for k, c := range testConditions {
+		for _, r := range p.Ratings() {
+			res, err := p.Target(r.Name(), c)
+			if err != nil {
+				t.Fatalf("target %s at condition %d: %v", r.Name(), k, err)
+			}
+			fmt.Fprintf(w, "target %d %s %.17g\n", k, r.Name(), res.Value)
+		}
+	}
+
+	// What the sweeps reach, so a change to the demo that leaves part of the
+	// interface untested fails here.
+	seen := map[string]bool{}
+	for _, l := range m.Calibration().Levers() {
+		var s thrustmap.LeverState
+		var rows []string
+		for k, c := range testConditions {
+			for i := 0; i <= 2*(rawHi-rawLo); i++ {
+				raw := rawLo + i
+				if i > rawHi-rawLo {
+					raw = 2*rawHi - rawLo - i
+				}
+				cmd, err := m.Command(&s, l.ID(), float64(raw), c)
+				if err != nil {
+					t.Fatalf("lever %d raw %d condition %d: %v", l.ID(), raw, k, err)
+				}
+				rows = append(rows, fmt.Sprintf("%d %d %.17g %.17g %d %d %s %s", k, raw, cmd.TLADeg, cmd.Value, cmd.Gate, b2i(cmd.Reverse), names(cmd.Flags.Names()), names(cmd.Clamped.Names())))
+				seen[m.GateName(cmd.Gate)] = true
+				for _, f := range append(cmd.Flags.Names(), cmd.Clamped.Names()...) {
+					seen[f] = true
+				}
+				seen["reverse"] = seen["reverse"] || cmd.Reverse
+			}
+		}
+		fmt.Fprintf(w, "sweep %d %d\n%s\n", l.ID(), len(rows), strings.Join(rows, "\n"))
+	}
+	for _, want := range []string{"", "reverse-full", "idle", "climb", "continuous", "reduced-takeoff", "takeoff", "reverse", "raised", "interlock", "altitude", "raw"} {
+		if !seen[want] {
+			t.Errorf("no sample of the sweeps reaches %q: choose conditions that do", want)
+		}
+	}
+
+	// Reset: capture the idle gate, move into its hysteresis band (still
+	// captured), then a fresh state at the same count is uncaptured.
+	idle := -1
+	for i, g := range p.Gates() {
+		if g.Name == p.Lever().IdleGate {
+			idle = i
+		}
+	}
+	for _, l := range m.Calibration().Levers() {
+		capture, hyst, err := m.EffectiveZone(l.ID(), idle)
+		if err != nil {
+			t.Fatal(err)
+		}
+		tla := p.Gates()[idle].TLADeg
+		rawIn, _ := l.Raw(tla)
+		rawBand, _ := l.Raw(tla + capture + hyst/2)
+		in, band := int(math.Round(rawIn)), int(math.Round(rawBand))
+		var s thrustmap.LeverState
+		c := testConditions[0]
+		m.Command(&s, l.ID(), float64(in), c)
+		before, _ := m.Command(&s, l.ID(), float64(band), c)
+		s.Reset()
+		after, _ := m.Command(&s, l.ID(), float64(band), c)
+		if before.Gate != idle || after.Gate != -1 {
+			t.Fatalf("lever %d: raw %d gives gate %d captured and %d fresh; the reset case needs %d and -1", l.ID(), band, before.Gate, after.Gate, idle)
+		}
+		fmt.Fprintf(w, "reset %d 0 %d %d %d %d\n", l.ID(), in, band, before.Gate, after.Gate)
+	}
+	if err := w.Flush(); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(path, b.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// names joins names with commas, "-" for none.
+func names(n []string) string {
+	if len(n) == 0 {
+		return "-"
+	}
+	return strings.Join(n, ",")
+}
+
+func b2i(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
+}
