@@ -218,10 +218,10 @@ func (m *Model) Command(s *LeverState, lever int, raw float64, c Conditions) (Le
 		if geom, err = m.geom(lever); err != nil {
 			return LeverCommand{}, err
 		}
-		if geom.cal == nil {
-			return LeverCommand{}, fmt.Errorf("%w %d has no calibration: use CommandAtTLA", ErrLever, lever)
-		}
 		s.holding = false
+	}
+	if geom.cal == nil {
+		return LeverCommand{}, fmt.Errorf("%w %d has no calibration: use CommandAtTLA", ErrLever, lever)
 	}
 	if math.IsNaN(raw) || math.IsInf(raw, 0) {
 		return LeverCommand{}, fmt.Errorf("%w %d: raw %g is not a finite count", ErrLever, lever, raw)

@@ -385,6 +385,12 @@ func TestCommandErrors(t *testing.T) {
 	if _, err := m.Command(&s, 1, 1000, Conditions{OATC: math.Inf(1)}); !errors.Is(err, ErrConditions) {
 		t.Errorf("bad conditions: %v", err)
 	}
+	// A state used for TLA commands, then asked for raw counts of no lever.
+	var tlaOnly LeverState
+	m.CommandAtTLA(&tlaOnly, NoLever, 10, Conditions{})
+	if _, err := m.Command(&tlaOnly, NoLever, 1000, Conditions{}); !errors.Is(err, ErrLever) {
+		t.Errorf("raw counts without a calibration: %v", err)
+	}
 	cmd, err := m.Command(&s, 1, -50, Conditions{OnGround: true})
 	if err != nil || cmd.Clamped&(ClampRaw|ClampDevice) != ClampRaw|ClampDevice || cmd.TLADeg != -18 {
 		t.Errorf("raw below the device: %+v %v", cmd, err)
