@@ -305,6 +305,20 @@ func (r *Rating) Corrections() []Correction { return append([]Correction(nil), r
 // method.
 func (r *Rating) Assumed() bool { return r.assumed }
 
+// Corner returns the rating's flat-rating corner as declared: an ISA
+// deviation (perAltitude nil), or one OAT per altitude row of the table
+// (interpolated linearly between rows and held beyond them by CornerOAT);
+// ok is false when the rating declares none.
+func (r *Rating) Corner() (isaDev float64, alts, perAltitude []float64, ok bool) {
+	switch r.corner.kind {
+	case cornerISADev:
+		return r.corner.isaDev, nil, nil, true
+	case cornerPerAltitude:
+		return 0, append([]float64(nil), r.corner.alts...), append([]float64(nil), r.corner.oats...), true
+	}
+	return 0, nil, nil, false
+}
+
 // CornerOAT returns the rating's corner (flat-rating kink) as an OAT at a
 // pressure altitude, and false when the rating declares no corner. A
 // per-altitude corner is interpolated linearly between rows and held beyond

@@ -221,73 +221,19 @@ func (g *cGen) addRating(r *thrustmap.Rating) error {
 	return nil
 }
 
-// corner recovers a rating's flat-rating corner through CornerOAT, the
-// library's only view of it: a corner that does not move with the ISA
-// temperature is one OAT per altitude row of the table (interpolated
-// linearly, held beyond the rows), one that does is an ISA deviation. The
-// recovered corner is then checked against CornerOAT at the rows, between
-// them and beyond them.
+// corner takes a rating's flat-rating corner as the library declares it:
+// an ISA deviation, or one OAT per altitude row.
 func (g *cGen) corner(cr *cRating) error {
-	r := cr.r
-	c0, ok := r.CornerOAT(0, 0)
-	if !ok {
-		return nil
-	}
-	c1, _ := r.CornerOAT(0, 1000)
-	if c0 != c1 {
-		cr.corner, cr.isaDev = 1, c0
-	} else {
-		cr.corner = 2
-		cr.alts = r.Table().Axis(grid.Altitude)
-		if len(cr.alts) < 2 {
-			return fmt.Errorf("%w: rating %q: its corner cannot be read back (no altitude axis)", ErrCExport, r.Name())
-		}
-		for _, a := range cr.alts {
-			t, _ := r.CornerOAT(a, 0)
-			cr.oats = append(cr.oats, t)
-		}
+	isaDev, alts, oats, ok := cr.r.Corner()
+	switch {
+	case !ok:
+	case oats == nil:
+		cr.corner, cr.isaDev = 1, isaDev
+	default:
+		cr.corner, cr.alts, cr.oats = 2, alts, oats
 		g.anyPerAltCorner = true
 	}
-	probes := []float64{atmos.MinAltitudeFt, -1000, 0, 3333, 12345, 37000, atmos.MaxAltitudeFt}
-	for i, a := range cr.alts {
-		probes = append(probes, a, a+0.25)
-		if i > 0 {
-			probes = append(probes, (a+cr.alts[i-1])/2)
-		}
-	}
-	for _, a := range probes {
-		for _, isa := range []float64{-56.5, 0, 15, 7.25} {
-			want, _ := r.CornerOAT(a, isa)
-			var got float64
-			if cr.corner == 1 {
-				got = isa + cr.isaDev
-			} else {
-				got = interp1(cr.alts, cr.oats, a)
-			}
-			if got != want {
-				return fmt.Errorf("%w: rating %q: its corner cannot be reproduced (at %g ft the library gives %g °C, the export %g °C)", ErrCExport, r.Name(), a, want, got)
-			}
-		}
-	}
 	return nil
-}
-
-// interp1 is the library's per-altitude corner interpolation, the same
-// formula the C uses: linear between rows, held beyond them.
-func interp1(xs, ys []float64, x float64) float64 {
-	n := len(xs)
-	if x <= xs[0] {
-		return ys[0]
-	}
-	if x >= xs[n-1] {
-		return ys[n-1]
-	}
-	i := 0
-	for i < n-2 && xs[i+1] <= x {
-		i++
-	}
-	f := (x - xs[i]) / (xs[i+1] - xs[i])
-	return ys[i]*(1-f) + ys[i+1]*f
 }
 
 func (g *cGen) ratingIndex(name string) int {
