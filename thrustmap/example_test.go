@@ -30,7 +30,7 @@ func ExampleProfile_Target() {
 	fmt.Printf("assumed %.0f °C: %.1f %s (thrust −%.1f %%)\n", r.EffectiveC, reduced.Value, reduced.Unit(), r.ThrustReductionPct)
 	// Output:
 	// takeoff N1 96.9 percent
-	// assumed 50 °C: 90.5 percent (thrust −23.9 %)
+	// assumed 50 °C: 90.5 percent (thrust −24.0 %)
 }
 
 // Bleed flags are named in the profile and passed as a set.
