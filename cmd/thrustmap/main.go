@@ -37,7 +37,13 @@ func main() {
 // run executes the command line args and returns the exit code. Errors are
 // printed to stderr as one "thrustmap: ..." message, never a stack trace.
 func run(args []string, stdout, stderr io.Writer) int {
+	return runWithInput(args, os.Stdin, stdout, stderr)
+}
+
+// runWithInput is run reading standard input from stdin.
+func runWithInput(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	root := newRootCmd(stdout, stderr)
+	root.SetIn(stdin)
 	root.SetArgs(args)
 	err := root.Execute()
 	if err == nil {

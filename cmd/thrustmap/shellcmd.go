@@ -40,7 +40,7 @@ standard input. It starts on the embedded demo profile when no -p is given.
 			}
 			in.Interactive = true
 			if f, ok := cmd.InOrStdin().(*os.File); ok && term.IsTerminal(int(f.Fd())) && isTerminal(out) {
-				return interactive(in, out, cmd.ErrOrStderr())
+				return interactive(in, f, out, cmd.ErrOrStderr())
 			}
 			return piped(in, cmd.InOrStdin(), out, cmd.ErrOrStderr())
 		},
@@ -74,14 +74,37 @@ func piped(in *script.Interpreter, r io.Reader, out, errOut io.Writer) error {
 	return sc.Err()
 }
 
-// interactive runs the readline prompt.
-func interactive(in *script.Interpreter, out, errOut io.Writer) error {
+// interactive runs the readline prompt on the terminal tty.
+func interactive(in *script.Interpreter, tty *os.File, out, errOut io.Writer) error {
+	fd := int(tty.Fd())
+	var saved *term.State
 	cfg := &readline.Config{
 		Prompt:          "thrustmap> ",
 		HistoryFile:     historyFile(),
 		AutoComplete:    completer{in},
 		InterruptPrompt: "^C",
 		EOFPrompt:       "",
+		Stdin:           io.NopCloser(tty),
+		Stdout:          out,
+		Stderr:          errOut,
+		FuncIsTerminal:  func() bool { return true },
+		FuncMakeRaw: func() (err error) {
+			saved, err = term.MakeRaw(fd)
+			return err
+		},
+		FuncExitRaw: func() error {
+			if saved == nil {
+				return nil
+			}
+			return term.Restore(fd, saved)
+		},
+		FuncGetWidth: func() int {
+			w, _, err := term.GetSize(fd)
+			if err != nil || w <= 0 {
+				return 80
+			}
+			return w
+		},
 	}
 	rl, err := readline.NewEx(cfg)
 	if err != nil {
