@@ -33,6 +33,10 @@ type LeverSpec struct {
 	NoiseSigma       float64      // counts, measured
 	MinCaptureDeg    float64      // floor on every gate's capture half-width
 	MinHysteresisDeg float64      // floor on every gate's hysteresis
+	// Axis is the device axis the lever is wired to, for live input: an
+	// evdev axis name or code ("ABS_Z", "2") or a joystick-interface axis
+	// number; "" when not recorded.
+	Axis string
 }
 
 // LeverCalibration maps one lever's raw counts to TLA and back. It is
@@ -262,6 +266,7 @@ type leverCalibFile struct {
 	NoiseSigma       float64     `toml:"noise_sigma"`
 	MinCaptureDeg    float64     `toml:"min_capture_deg"`
 	MinHysteresisDeg float64     `toml:"min_hysteresis_deg"`
+	Axis             string      `toml:"axis"`
 }
 
 //go:embed calibrations/*.toml
@@ -314,7 +319,7 @@ func ParseCalibration(file string, data []byte) (*Calibration, error) {
 			continue
 		}
 		spec := LeverSpec{ID: *lf.ID, RawMin: *lf.RawMin, RawMax: *lf.RawMax, Fit: fit, Deadband: lf.Deadband,
-			NoiseSigma: lf.NoiseSigma, MinCaptureDeg: lf.MinCaptureDeg, MinHysteresisDeg: lf.MinHysteresisDeg}
+			NoiseSigma: lf.NoiseSigma, MinCaptureDeg: lf.MinCaptureDeg, MinHysteresisDeg: lf.MinHysteresisDeg, Axis: lf.Axis}
 		shapeOK := true
 		for j, p := range lf.Points {
 			if len(p) != 2 {
@@ -378,6 +383,9 @@ func (c *Calibration) Encode() []byte {
 		}
 		fmt.Fprintf(&b, "]\ndeadband = %s\nnoise_sigma = %s\nmin_capture_deg = %s\nmin_hysteresis_deg = %s\n",
 			num(s.Deadband), num(s.NoiseSigma), num(s.MinCaptureDeg), num(s.MinHysteresisDeg))
+		if s.Axis != "" {
+			fmt.Fprintf(&b, "axis = %q\n", s.Axis)
+		}
 	}
 	return b.Bytes()
 }

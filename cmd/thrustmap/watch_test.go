@@ -12,6 +12,8 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"github.com/thrustmap/thrustmap/thrustmap"
 )
 
 // inputEvent is struct input_event on 64-bit Linux
@@ -175,6 +177,13 @@ func TestWatch(t *testing.T) {
 			inputEvent{0, 0, evAbs, 0x07, 3021}, inputEvent{0, 0, evAbs, 0x06, 2588}),
 		wantStderr: []string{"lever 1 ← ABS_THROTTLE, lever 2 ← ABS_RUDDER"},
 	}, {
+		name: "evdev, axes recorded in the calibration (axis keys)",
+		args: []string{"--format", "evdev", "-c", "axes.toml"},
+		data: encode(t,
+			inputEvent{0, 0, evAbs, 0x06, 1218}, inputEvent{0, 0, evAbs, absX, 99}, // ABS_X is not mapped
+			inputEvent{0, 0, evAbs, 0x07, 3021}, inputEvent{0, 0, evAbs, 0x06, 2588}),
+		wantStderr: []string{"lever 1 ← ABS_THROTTLE, lever 2 ← ABS_RUDDER"},
+	}, {
 		name: "joystick interface: initial state, then motion, with its warning",
 		args: []string{"--format", "js"},
 		data: encode(t,
@@ -187,7 +196,30 @@ func TestWatch(t *testing.T) {
 		data:       []byte("1 1218\nboard ready\n2 3021\n1 2588\n"),
 		wantStderr: []string{"lever ids from the lines"},
 	}}
+	// The demo calibration with each lever's device axis recorded.
+	cal, err := thrustmap.LoadCalibration("demo")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for id, axis := range map[int]string{1: "ABS_THROTTLE", 2: "7"} {
+		spec := cal.Lever(id).Spec()
+		spec.Axis = axis
+		l, err := thrustmap.NewLeverCalibration(spec)
+		if err != nil {
+			t.Fatal(err)
+		}
+		cal = cal.With(l)
+	}
+	axesCal := filepath.Join(t.TempDir(), "axes.toml")
+	if err := cal.WriteFile(axesCal); err != nil {
+		t.Fatal(err)
+	}
 	for _, tc := range tests {
+		for i, a := range tc.args {
+			if a == "axes.toml" {
+				tc.args[i] = axesCal
+			}
+		}
 		t.Run(tc.name, func(t *testing.T) {
 			path := mkfifo(t)
 			fed := make(chan error, 1)

@@ -52,7 +52,8 @@ Devices (--format, or told from the path):
 
 Axes: by default the calibration's levers, in file order, are read from
 ABS_X, ABS_Y, ABS_Z, ... (evdev) or axes 0, 1, 2, ... (js). --axis CODE=LEVER
-maps one axis instead (repeatable): CODE is an ABS_ name (ABS_THROTTLE,
+maps one axis instead (repeatable), as does an axis key on a lever of the
+calibration; CODE is an ABS_ name (ABS_THROTTLE,
 ABS_RZ, ...) or a number for evdev, an axis number for js. Serial lines carry
 lever ids themselves.
 
@@ -122,20 +123,28 @@ type watchConfig struct {
 	levers                       []int       // the levers shown, in order
 }
 
-// watchAxes builds the axis map: --axis CODE=LEVER pairs, or by default the
-// calibration's levers in order on ABS_X, ABS_Y, ... (evdev) or axes 0, 1,
-// ... (js). Serial lines name their levers: every calibrated lever is shown.
+// watchAxes builds the axis map: --axis CODE=LEVER pairs; else the axis
+// each lever's calibration records (its axis key); else the calibration's
+// levers in order on ABS_X, ABS_Y, ... (evdev) or axes 0, 1, ... (js).
+// Serial lines name their levers: every calibrated lever is shown.
 func watchAxes(cal *thrustmap.Calibration, format string, args []string) (map[int]int, []int, error) {
-	var all []int
+	var fromCal []string
+	var ids []int
 	for _, l := range cal.Levers() {
-		all = append(all, l.ID())
+		ids = append(ids, l.ID())
+		if a := l.Spec().Axis; a != "" {
+			fromCal = append(fromCal, fmt.Sprintf("%s=%d", a, l.ID()))
+		}
+	}
+	if len(args) == 0 && format != input.FormatSerial {
+		args = fromCal
 	}
 	switch format {
 	case input.FormatSerial:
 		if len(args) > 0 {
 			return nil, nil, fmt.Errorf("--axis: serial lines carry lever ids (\"LEVER RAW\"); there are no axes to map")
 		}
-		return nil, all, nil
+		return nil, ids, nil
 	case input.FormatEvdev, input.FormatJoystick:
 	default:
 		return nil, nil, fmt.Errorf("--format %q: want evdev, js or serial", format)
@@ -143,10 +152,10 @@ func watchAxes(cal *thrustmap.Calibration, format string, args []string) (map[in
 	axes := make(map[int]int)
 	var levers []int
 	if len(args) == 0 {
-		for i, id := range all {
+		for i, id := range ids {
 			axes[i] = id
 		}
-		return axes, all, nil
+		return axes, ids, nil
 	}
 	for _, a := range args {
 		codeText, leverText, ok := strings.Cut(a, "=")
