@@ -34,7 +34,7 @@ func newWatchCmd() *cobra.Command {
 	var w watchConfig
 	var asJSON bool
 	cmd := &cobra.Command{
-		Use:   "watch -p PROFILE -c CAL --device PATH [--format evdev|js|serial] [--axis CODE=LEVER]... [--baud N] --alt ALT --oat T [--mach M] [--bleed NAME]... [--assumed T] [--on-ground] [--once[=N]]",
+		Use:   "watch -p PROFILE -c CAL --device PATH [--format evdev|js|serial] [--axis CODE=LEVER]... [--baud N] --alt ALT --oat T [--mach M] [--bleed NAME]... [--assumed T] [--on-ground] [--once N]",
 		Short: "Live view of the levers of a device: raw counts, TLA, gate and command",
 		Long: `watch reads a live lever device and shows, for each lever, the raw count, the
 thrust-lever angle, the detent gate and the engine command at the given
@@ -60,7 +60,7 @@ lever ids themselves.
 When the device goes away (unplugged, or the writer of a FIFO closes it),
 watch says so and tries to reopen it every 500 ms until it returns; a
 /dev/input/by-id/... path keeps its name when a USB device comes back under
-another number. Ctrl-C ends it (exit status 0). --once=N ends it after N
+another number. Ctrl-C ends it (exit status 0). --once N ends it after N
 samples.
 
 Each update line (and JSON object, with the lever command's keys) carries
@@ -106,8 +106,7 @@ returns.
 	f.StringVar(&w.format, "format", "", "evdev, js or serial (default: told from the device path)")
 	f.StringArrayVar(&w.axisArgs, "axis", nil, "CODE=LEVER: read lever LEVER from axis CODE (repeatable)")
 	f.IntVar(&w.baud, "baud", 115200, "serial port speed")
-	f.IntVar(&w.once, "once", 0, "exit after N samples (bare --once: after the first)")
-	f.Lookup("once").NoOptDefVal = "1"
+	f.IntVar(&w.once, "once", 0, "exit after N samples (0: run until interrupted)")
 	cf.register(f, true)
 	f.BoolVar(&asJSON, "json", false, "print one JSON object per update")
 	return cmd
