@@ -38,9 +38,9 @@ the pot. The points must stay strictly monotone.
 			if err != nil {
 				return err
 			}
-			l := c.Lever(lever)
-			if l == nil {
-				return fmt.Errorf("--lever: %s has no lever %d (levers: %s)", cal, lever, leverIDs(c))
+			l, err := calibratedLever(c, lever)
+			if err != nil {
+				return err
 			}
 			nl, err := l.WithPoint(raw, tla)
 			if err != nil {

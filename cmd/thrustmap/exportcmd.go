@@ -116,9 +116,9 @@ the table from the calibration.
 			if err != nil {
 				return err
 			}
-			l := c.Lever(lever)
-			if l == nil {
-				return fmt.Errorf("--lever: %s has no lever %d (levers: %s)", c.Source(), lever, leverIDs(c))
+			l, err := calibratedLever(c, lever)
+			if err != nil {
+				return err
 			}
 			t, err := export.LeverLookup(l, step)
 			if err != nil {

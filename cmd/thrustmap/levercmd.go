@@ -122,8 +122,8 @@ spread of their lever angles, is reported.
 				return err
 			}
 			for _, id := range levers {
-				if m.Calibration().Lever(id) == nil {
-					return fmt.Errorf("--lever: %s has no lever %d (levers: %s)", m.Calibration().Source(), id, leverIDs(m.Calibration()))
+				if _, err := calibratedLever(m.Calibration(), id); err != nil {
+					return err
 				}
 			}
 			states := make([]thrustmap.LeverState, len(levers))
@@ -160,6 +160,15 @@ spread of their lever angles, is reported.
 	cf.register(cmd.Flags(), true)
 	cmd.Flags().BoolVar(&asJSON, "json", false, "print JSON")
 	return cmd
+}
+
+// calibratedLever returns lever id of cal, or an error for --lever naming
+// the levers it has.
+func calibratedLever(cal *thrustmap.Calibration, id int) (*thrustmap.LeverCalibration, error) {
+	if l := cal.Lever(id); l != nil {
+		return l, nil
+	}
+	return nil, fmt.Errorf("--lever: %s has no lever %d (levers: %s)", cal.Source(), id, leverIDs(cal))
 }
 
 func leverIDs(cal *thrustmap.Calibration) string {
@@ -225,9 +234,9 @@ or with -p at each gate of the profile.
 			if err != nil {
 				return err
 			}
-			l := c.Lever(lever)
-			if l == nil {
-				return fmt.Errorf("--lever: %s has no lever %d (levers: %s)", c.Source(), lever, leverIDs(c))
+			l, err := calibratedLever(c, lever)
+			if err != nil {
+				return err
 			}
 			type row struct {
 				Gate    string  `json:"gate,omitempty"`

@@ -235,8 +235,8 @@ name of an embedded demo profile for its built-in calibration.
 			if err != nil {
 				return err
 			}
-			if m.Calibration().Lever(lever) == nil {
-				return fmt.Errorf("--lever: %s has no lever %d (levers: %s)", m.Calibration().Source(), lever, leverIDs(m.Calibration()))
+			if _, err := calibratedLever(m.Calibration(), lever); err != nil {
+				return err
 			}
 			ch, err := chart.Lever(m, lever, c)
 			if err != nil {
@@ -283,22 +283,10 @@ first in the recording). Recordings are read as by sweep (--format, --axis).
 					return err
 				}
 			}
-			reader, skipped, warning, closer, err := rf.open(args[0])
-			if err != nil {
-				return err
-			}
-			defer closer.Close()
 			an := sweep.NewAnalyzer(sweep.Options{})
 			var samples []input.Sample
 			var seen []int
-			for {
-				s, err := reader.Next()
-				if errors.Is(err, io.EOF) {
-					break
-				}
-				if err != nil {
-					return err
-				}
+			skipped, warning, err := rf.each(args[0], func(s input.Sample) {
 				if !slices.Contains(seen, s.Lever) {
 					seen = append(seen, s.Lever)
 				}
@@ -309,6 +297,9 @@ first in the recording). Recordings are read as by sweep (--format, --axis).
 					an.Add(s)
 					samples = append(samples, s)
 				}
+			})
+			if err != nil {
+				return err
 			}
 			w := cmd.OutOrStdout()
 			if warning != "" {

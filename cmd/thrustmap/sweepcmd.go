@@ -141,6 +141,27 @@ func (f *recordingFlags) open(path string) (input.Reader, func() ([]input.Skippe
 	return nil, nil, "", nil, fmt.Errorf("--format %q: want csv, evdev or js", format)
 }
 
+// each reads the recording at path, calling fn with every sample in order;
+// it returns the reader's skipped lines and, for the joystick interface, the
+// warning about its rescaled counts.
+func (f *recordingFlags) each(path string, fn func(input.Sample)) (skipped func() ([]input.Skipped, int), warning string, err error) {
+	reader, skipped, warning, closer, err := f.open(path)
+	if err != nil {
+		return nil, "", err
+	}
+	defer closer.Close()
+	for {
+		s, err := reader.Next()
+		if errors.Is(err, io.EOF) {
+			return skipped, warning, nil
+		}
+		if err != nil {
+			return nil, "", err
+		}
+		fn(s)
+	}
+}
+
 func splitAxis(s string) (string, int, error) {
 	code, lever, ok := strings.Cut(s, "=")
 	n, err := strconv.Atoi(lever)
@@ -202,23 +223,14 @@ add-point.
 			default:
 				return fmt.Errorf("--orientation %q: want auto, forward or inverted", orient)
 			}
-			reader, skipped, warning, closer, err := rf.open(args[0])
-			if err != nil {
-				return err
-			}
-			defer closer.Close()
 			an := sweep.NewAnalyzer(sweep.Options{})
-			for {
-				s, err := reader.Next()
-				if errors.Is(err, io.EOF) {
-					break
-				}
-				if err != nil {
-					return err
-				}
+			skipped, warning, err := rf.each(args[0], func(s input.Sample) {
 				if lever == 0 || s.Lever == lever {
 					an.Add(s)
 				}
+			})
+			if err != nil {
+				return err
 			}
 			report := sweepJSON{}
 			report.SkippedLines, report.SkippedCount = skipped()

@@ -129,23 +129,7 @@ func stepped(xs []float64, step float64) ([]float64, error) {
 // sample evaluates fn at every point of the grid, first axis outermost.
 func sample(axes [grid.NumAxes][]float64, fn func([grid.NumAxes]float64) float64) []float64 {
 	var out []float64
-	var q [grid.NumAxes]float64
-	var rec func(a grid.Axis)
-	rec = func(a grid.Axis) {
-		if a == grid.NumAxes {
-			out = append(out, fn(q))
-			return
-		}
-		if axes[a] == nil {
-			rec(a + 1)
-			return
-		}
-		for _, x := range axes[a] {
-			q[a] = x
-			rec(a + 1)
-		}
-	}
-	rec(grid.Altitude)
+	eachPoint(axes, func(q [grid.NumAxes]float64) { out = append(out, fn(q)) })
 	return out
 }
 
@@ -154,41 +138,44 @@ func sample(axes [grid.NumAxes][]float64, fn func([grid.NumAxes]float64) float64
 func measure(axes [grid.NumAxes][]float64, g *grid.Grid, fn func([grid.NumAxes]float64) float64) (float64, []float64) {
 	var centres [grid.NumAxes][]float64
 	for a, xs := range axes {
-		if xs == nil {
-			continue
-		}
 		for i := 0; i+1 < len(xs); i++ {
 			centres[a] = append(centres[a], (xs[i]+xs[i+1])/2)
 		}
 	}
 	worst, at := 0.0, []float64{}
+	eachPoint(centres, func(q [grid.NumAxes]float64) {
+		v, _ := g.At(q)
+		if e := math.Abs(v - fn(q)); e > worst {
+			worst, at = e, at[:0]
+			for a, xs := range axes {
+				if xs != nil {
+					at = append(at, q[a])
+				}
+			}
+		}
+	})
+	return worst, at
+}
+
+// eachPoint calls fn at every combination of the points of the axes that
+// are not nil, first axis outermost.
+func eachPoint(axes [grid.NumAxes][]float64, fn func([grid.NumAxes]float64)) {
 	var q [grid.NumAxes]float64
 	var rec func(a grid.Axis)
 	rec = func(a grid.Axis) {
-		if a == grid.NumAxes {
-			v, _ := g.At(q)
-			if e := math.Abs(v - fn(q)); e > worst {
-				worst = e
-				at = at[:0]
-				for b, xs := range axes {
-					if xs != nil {
-						at = append(at, q[b])
-					}
-				}
+		switch {
+		case a == grid.NumAxes:
+			fn(q)
+		case axes[a] == nil:
+			rec(a + 1)
+		default:
+			for _, x := range axes[a] {
+				q[a] = x
+				rec(a + 1)
 			}
-			return
-		}
-		if axes[a] == nil {
-			rec(a + 1)
-			return
-		}
-		for _, x := range centres[a] {
-			q[a] = x
-			rec(a + 1)
 		}
 	}
 	rec(grid.Altitude)
-	return worst, at
 }
 
 // CSV writes the grid as comment lines stating it, then one row per point.
