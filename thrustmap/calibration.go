@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"math"
 	"path"
+	"reflect"
 	"slices"
 	"strconv"
 	"strings"
@@ -297,7 +298,7 @@ func ParseCalibration(file string, data []byte) (*Calibration, error) {
 	dec := toml.NewDecoder(bytes.NewReader(data))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(&f); err != nil {
-		return nil, tomlError(file, err)
+		return nil, tomlError(file, err, reflect.TypeFor[calibrationFile]())
 	}
 	c := &collector{file: file, lines: indexKeyLines(data)}
 	if f.Schema != CalibrationSchema {

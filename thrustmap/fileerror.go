@@ -3,6 +3,7 @@ package thrustmap
 import (
 	"errors"
 	"fmt"
+	"reflect"
 	"strings"
 
 	"github.com/pelletier/go-toml/v2"
@@ -83,7 +84,7 @@ const (
 	CheckGridShape   = "grid_shape"       // values that do not match their axes
 	CheckReference   = "unknown_name"     // a rating, bleed or gate that is not declared
 	CheckGateOrder   = "gate_order"       // gates not in increasing TLA
-	CheckGateSpacing = "gate_spacing"     // capture zones too close (design brief §2)
+	CheckGateSpacing = "gate_spacing"     // capture zones too close (docs/methods.md, Gate rules)
 	CheckExpression  = "expression"       // a gate expression that does not compile
 	CheckInvalid     = "invalid"          // any other fault
 )
@@ -110,8 +111,10 @@ func (c *collector) err() error {
 }
 
 // tomlError converts an error from the TOML decoder into FileErrors with
-// lines: syntax errors, type mismatches and unknown keys.
-func tomlError(file string, err error) error {
+// lines: syntax errors, type mismatches and unknown keys. schema is the
+// decoder's struct type, so an unknown key can be answered with the nearest
+// known one.
+func tomlError(file string, err error, schema reflect.Type) error {
 	var strict *toml.StrictMissingError
 	if errors.As(err, &strict) {
 		var out FileErrors
@@ -119,7 +122,7 @@ func tomlError(file string, err error) error {
 			e := &strict.Errors[i]
 			line, _ := e.Position()
 			out = append(out, &FileError{File: file, Line: line, Key: strings.Join(e.Key(), "."), Code: CheckUnknownKey,
-				Err: errors.New("unknown key (see the file format in the design brief, §4a)")})
+				Err: errors.New(unknownKeyMessage(schema, e.Key()))})
 			if len(out) == maxFileErrors {
 				break
 			}

@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"path"
+	"reflect"
 	"slices"
 	"strings"
 
@@ -165,7 +166,7 @@ func ParseProfile(file string, data []byte) (*Profile, error) {
 	dec := toml.NewDecoder(bytes.NewReader(data))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(&f); err != nil {
-		return nil, tomlError(file, err)
+		return nil, tomlError(file, err, reflect.TypeFor[profileFile]())
 	}
 	c := &collector{file: file, lines: indexKeyLines(data), broken: map[string]bool{}}
 	p := buildProfile(c, &f)

@@ -114,7 +114,8 @@ func TestProfileErrors(t *testing.T) {
 		line      int
 		key, text string
 	}{
-		{"unknown key", `name = "test"`, "name = \"test\"\ncolour = \"red\"", 3, "colour", "unknown key"},
+		{"unknown key", `name = "test"`, "name = \"test\"\ncolour = \"red\"", 3, "colour", "unknown key at the top level; the keys there are assumed_temperature, bleeds"},
+		{"near key", `max_c = 60`, "max_c = 60\nmax_reduction = 20", 26, "assumed_temperature.max_reduction", "unknown key in [assumed_temperature]: did you mean max_reduction_pct?"},
 		{"wrong type", `max_c = 60`, `max_c = "hot"`, 25, "assumed_temperature.max_c", "wrong type: got a string, want a number"},
 		{"syntax", `max_c = 60`, `max_c = = 60`, 25, "", ""},
 		{"bad parameter", `parameter = "N1"`, `parameter = "RPM"`, 3, "parameter", "want N1, EPR or TORQUE"},
