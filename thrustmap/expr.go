@@ -230,18 +230,21 @@ func compileExpr(p *Profile, src string, wantBool bool) (*compiledExpr, error) {
 	return ce, nil
 }
 
-// exprError keeps the first line of a compile error and its column.
+// exprError keeps the first line of a compile error and its column, with
+// the names of the environment for an unknown name and a function's
+// signature for a wrong number of arguments.
 func exprError(err error) error {
 	var fe *file.Error
 	if errors.As(err, &fe) {
 		msg, _, _ := strings.Cut(fe.Message, "\n")
+		hint := ExprHint(msg, exprNames())
 		if fe.Column > 0 {
-			return fmt.Errorf("%s (column %d)", msg, fe.Column+1)
+			return fmt.Errorf("%s (column %d)%s", msg, fe.Column+1, hint)
 		}
-		return errors.New(msg)
+		return errors.New(msg + hint)
 	}
 	msg, _, _ := strings.Cut(err.Error(), "\n")
-	return errors.New(msg)
+	return errors.New(msg + ExprHint(msg, exprNames()))
 }
 
 // nameChecker walks a compiled expression: it finds uses of tla and checks

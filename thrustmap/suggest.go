@@ -152,3 +152,45 @@ func tableHeader(t reflect.Type, path []string) string {
 	}
 	return "[" + name + "]"
 }
+
+// exprSignatures spells each function of the expression environment with
+// its arguments (temperatures in °C, altitudes in ft); target is the shell's
+// own.
+var exprSignatures = map[string]string{
+	"bleed":     `bleed(name) → bool`,
+	"rating":    `rating(name) → number`,
+	"rating_at": `rating_at(name, alt_ft, temp_c) → number`,
+	"assumed":   `assumed(name) → number`,
+	"isa_temp":  `isa_temp(alt_ft) → °C`,
+	"clamp":     `clamp(x, lo, hi) → number`,
+	"lerp":      `lerp(a, b, f) → a + (b − a)·f`,
+	"target":    `target(name) → number (shell only)`,
+}
+
+// ExprHint returns what a user needs to mend an expression, given the first
+// line of its compile error: for an unknown name, the nearest of names (the
+// environment's variables and functions) and the full list; for a function
+// called with the wrong number of arguments, its signature. It returns ""
+// when it has nothing to add.
+func ExprHint(msg string, names []string) string {
+	if name, ok := strings.CutPrefix(msg, "unknown name "); ok {
+		sorted := slices.Sorted(slices.Values(names))
+		hint := "."
+		if s := nearest(name, sorted); s != "" {
+			hint = ": did you mean " + s + "?"
+		}
+		return hint + " The names are " + strings.Join(sorted, ", ") + "."
+	}
+	for _, head := range []string{"not enough arguments to call ", "too many arguments to call "} {
+		if fn, ok := strings.CutPrefix(msg, head); ok {
+			if sig, ok := exprSignatures[fn]; ok {
+				return ": " + sig
+			}
+		}
+	}
+	return ""
+}
+
+// exprNames lists the variables and functions of the gate expression
+// environment.
+func exprNames() []string { return tagNames(reflect.TypeFor[exprEnv](), "expr") }

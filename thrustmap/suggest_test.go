@@ -2,6 +2,7 @@ package thrustmap
 
 import (
 	"reflect"
+	"strings"
 	"testing"
 )
 
@@ -48,6 +49,36 @@ func TestUnknownKeyMessage(t *testing.T) {
 	for _, tc := range tests {
 		if got := unknownKeyMessage(tc.schema, tc.path); got != tc.want {
 			t.Errorf("%v: got %q, want %q", tc.path, got, tc.want)
+		}
+	}
+}
+
+// TestExprErrorsTeach: a gate expression that names something unknown or
+// calls a function wrongly says what would be right.
+func TestExprErrorsTeach(t *testing.T) {
+	p, err := LoadProfile("demo")
+	if err != nil {
+		t.Fatal(err)
+	}
+	tests := []struct{ src, want string }{
+		{`rating_at("takeoff")`, "not enough arguments to call rating_at: rating_at(name, alt_ft, temp_c) → number"},
+		{`rating("takeoff", 2)`, "too many arguments to call rating: rating(name) → number"},
+		{`altitude + 1`, "unknown name altitude: did you mean alt? The names are alt, assumed, assumed_set, assumed_temp, bleed, clamp, isa_dev, isa_temp, lerp, mach, oat, on_ground, rating, rating_at, tat, tla."},
+		{`ratng("takeoff")`, "did you mean rating?"},
+		{`zebra`, "unknown name zebra. The names are alt,"},
+		{`oat >`, "unexpected token EOF (column "},
+	}
+	for _, tc := range tests {
+		_, err := compileExpr(p, tc.src, false)
+		if err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%s: err = %v, want it to contain %q", tc.src, err, tc.want)
+		}
+	}
+	env := reflect.TypeFor[exprEnv]()
+	for i := range env.NumField() {
+		f := env.Field(i)
+		if name := tagName(f, "expr"); f.Type.Kind() == reflect.Func && exprSignatures[name] == "" {
+			t.Errorf("function %s has no signature in exprSignatures", name)
 		}
 	}
 }

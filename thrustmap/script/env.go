@@ -2,7 +2,9 @@ package script
 
 import (
 	"fmt"
+	"maps"
 	"math"
+	"slices"
 	"strings"
 
 	"github.com/expr-lang/expr"
@@ -115,20 +117,22 @@ func (in *Interpreter) compile(src string) (*vm.Program, error) {
 	}
 	p, err := expr.Compile(src, expr.Env(in.env), expr.MaxNodes(thrustmap.MaxExprNodes*5))
 	if err != nil {
-		return nil, exprErr(src, err)
+		return nil, exprErr(src, err, slices.Collect(maps.Keys(in.env)))
 	}
 	in.progs[src] = p
 	return p, nil
 }
 
-// exprErr keeps a compile error's first line and column.
-func exprErr(src string, err error) error {
+// exprErr keeps a compile error's first line and column, with the names of
+// the environment (names) for an unknown name and a function's signature
+// for a wrong number of arguments.
+func exprErr(src string, err error, names []string) error {
 	if fe, ok := err.(*file.Error); ok {
 		msg, _, _ := strings.Cut(fe.Message, "\n")
-		return fmt.Errorf("expression %q: %s (column %d)", src, msg, fe.Column+1)
+		return fmt.Errorf("expression %q: %s (column %d)%s", src, msg, fe.Column+1, thrustmap.ExprHint(msg, names))
 	}
 	msg, _, _ := strings.Cut(err.Error(), "\n")
-	return fmt.Errorf("expression %q: %s", src, msg)
+	return fmt.Errorf("expression %q: %s%s", src, msg, thrustmap.ExprHint(msg, names))
 }
 
 // eval evaluates src in the current session.
