@@ -198,6 +198,7 @@ type compiledExpr struct {
 	num     numFn  // the allocation-free form of a number, or nil: run program
 	truth   boolFn // the allocation-free form of a `when`, or nil: run program
 	usesTLA bool   // must be evaluated at every lever position, not once per conditions
+	reduces bool   // calls assumed(): commands the assumed-temperature reduction
 }
 
 // compileExpr compiles src against the environment; wantBool selects a
@@ -221,7 +222,7 @@ func compileExpr(p *Profile, src string, wantBool bool) (*compiledExpr, error) {
 	if v.err != nil {
 		return nil, v.err
 	}
-	ce.usesTLA = v.usesTLA
+	ce.usesTLA, ce.reduces = v.usesTLA, v.reduces
 	if wantBool {
 		ce.truth, _ = fastBool(p, node)
 	} else {
@@ -252,6 +253,7 @@ func exprError(err error) error {
 type nameChecker struct {
 	profile *Profile
 	usesTLA bool
+	reduces bool // assumed() is called
 	err     error
 }
 
@@ -265,6 +267,9 @@ func (v *nameChecker) Visit(node *ast.Node) {
 		id, ok := n.Callee.(*ast.IdentifierNode)
 		if !ok || v.err != nil {
 			return
+		}
+		if id.Value == "assumed" {
+			v.reduces = true
 		}
 		kind, ok := nameArgs[id.Value]
 		if !ok || len(n.Arguments) == 0 {

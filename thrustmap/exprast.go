@@ -28,3 +28,12 @@ func (p *Profile) GateExprFast(i int) (target, when bool) {
 	ge := p.gateExprs[i]
 	return ge.target != nil && ge.target.num != nil, ge.when != nil && ge.when.truth != nil
 }
+
+// GateReduces reports whether gate i's target expression calls assumed(),
+// so that the gate commands the assumed-temperature reduction; a gate that
+// commands a rating by name commands its full value. It panics if i is out
+// of range.
+func (p *Profile) GateReduces(i int) bool {
+	ge := p.gateExprs[i]
+	return ge.target != nil && ge.target.reduces
+}

@@ -102,6 +102,18 @@ func (c *collector) addCode(code, key, format string, args ...any) {
 	c.errs = append(c.errs, &FileError{File: c.file, Line: c.lines.line(key), Key: key, Code: code, Err: fmt.Errorf(format, args...)})
 }
 
+// namesBroken reports whether the expression src names, quoted, a rating
+// that failed to build: its faults are reported already, and the
+// expression's failure would only echo them.
+func (c *collector) namesBroken(src string) bool {
+	for name := range c.broken {
+		if strings.Contains(src, "'"+name+"'") || strings.Contains(src, `"`+name+`"`) {
+			return true
+		}
+	}
+	return false
+}
+
 // err returns the faults as an error, or nil.
 func (c *collector) err() error {
 	if len(c.errs) == 0 {

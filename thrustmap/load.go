@@ -674,13 +674,13 @@ func buildLever(c *collector, f *profileFile, p *Profile) {
 		}
 		if g.Target != "" {
 			var err error
-			if ge.target, err = compileExpr(p, g.Target, false); err != nil {
+			if ge.target, err = compileExpr(p, g.Target, false); err != nil && !c.namesBroken(g.Target) {
 				c.addCode(CheckExpression, key+".target", "expression %q: %v", g.Target, err)
 			}
 		}
 		if g.When != "" {
 			var err error
-			if ge.when, err = compileExpr(p, g.When, true); err != nil {
+			if ge.when, err = compileExpr(p, g.When, true); err != nil && !c.namesBroken(g.When) {
 				c.addCode(CheckExpression, key+".when", "expression %q: %v", g.When, err)
 			}
 		}

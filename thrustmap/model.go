@@ -271,6 +271,15 @@ func (m *Model) commandAt(s *LeverState, geom *leverGeom, raw, tla float64, cl C
 	case m.anyTLA:
 		s.invalidate(c)
 	}
+	// A lever angle beyond the end stops (a calibration that runs past
+	// them, or an angle given so) is held at the stop and reported.
+	if lv := &m.profile.lever; lv.TLAMinDeg < lv.TLAMaxDeg {
+		if tla < lv.TLAMinDeg {
+			tla, cl = lv.TLAMinDeg, cl|ClampLever
+		} else if tla > lv.TLAMaxDeg {
+			tla, cl = lv.TLAMaxDeg, cl|ClampLever
+		}
+	}
 	out.Lever, out.Raw, out.TLADeg, out.Parameter, out.Clamped = geom.id, raw, tla, m.profile.parameter, cl
 	out.Gate, out.Lower, out.Upper = -1, -1, -1
 	gates := m.profile.gates

@@ -462,3 +462,47 @@ func TestHolderReloadRace(t *testing.T) {
 		t.Fatal("the model is gone after a failed reload")
 	}
 }
+
+// TestLeverBeyondEndStops: a calibration that runs past the profile's end
+// stops (−18° and 55° on the demo) gives angles held at the stop and
+// reported as a lever clamp. Worked by hand on a linear calibration from
+// raw 0 at −30° to raw 4000 at 60° (0.0225° a count): raw 2000 is 15°
+// (inside), raw 200 is −25.5° (held at −18°), raw 3900 is 57.75° (held at
+// 55°).
+func TestLeverBeyondEndStops(t *testing.T) {
+	p, _ := LoadProfile("demo")
+	spec := demoSpec()
+	spec.Points = [][2]float64{{0, -30}, {4000, 60}}
+	spec.Deadband = 0
+	l, err := NewLeverCalibration(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cal, _ := NewCalibration(l)
+	m, err := NewModel(p, cal)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tests := []struct {
+		raw, tla float64
+		clamped  Clamped
+	}{
+		{2000, 15, 0},
+		{200, -18, ClampLever},
+		{3900, 55, ClampLever},
+	}
+	for _, tc := range tests {
+		var s LeverState
+		cmd, err := m.Command(&s, 1, tc.raw, Conditions{OnGround: true})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if math.Abs(cmd.TLADeg-tc.tla) > 1e-9 || cmd.Clamped&ClampLever != tc.clamped {
+			t.Errorf("raw %g: TLA %g clamped %v, want %g %v", tc.raw, cmd.TLADeg, cmd.Clamped.Names(), tc.tla, tc.clamped.Names())
+		}
+	}
+	var s LeverState
+	if cmd, _ := m.CommandAtTLA(&s, NoLever, 70, Conditions{}); cmd.TLADeg != 55 || cmd.Clamped&ClampLever == 0 {
+		t.Errorf("TLA 70: %g %v, want 55 and a lever clamp", cmd.TLADeg, cmd.Clamped.Names())
+	}
+}

@@ -31,9 +31,10 @@ const (
 	ClampMach                            // Mach beyond a table's axis
 	ClampRaw                             // raw lever counts beyond the calibrated points
 	ClampDevice                          // raw lever counts beyond the device's range
+	ClampLever                           // a lever angle beyond the profile's end stops (tla_min_deg, tla_max_deg)
 )
 
-var clampNames = []string{"altitude", "temperature", "mach", "raw", "device"}
+var clampNames = []string{"altitude", "temperature", "mach", "raw", "device", "lever"}
 
 // Names returns the clamped inputs' names in a fixed order, as in JSON
 // output; empty and non-nil for none.

@@ -242,6 +242,7 @@ func resultFlags(f thrustmap.Flags, cl thrustmap.Clamped) C.uint32_t {
 		{cl&thrustmap.ClampMach != 0, C.THRUSTMAP_CLAMPED_MACH},
 		{cl&thrustmap.ClampRaw != 0, C.THRUSTMAP_CLAMPED_RAW},
 		{cl&thrustmap.ClampDevice != 0, C.THRUSTMAP_CLAMPED_DEVICE},
+		{cl&thrustmap.ClampLever != 0, C.THRUSTMAP_CLAMPED_LEVER},
 	} {
 		if b.set {
 			out |= b.bit

@@ -92,6 +92,7 @@ extern "C" {
 #define THRUSTMAP_CLAMPED_MACH (1u << 10)       /* Mach beyond a table */
 #define THRUSTMAP_CLAMPED_RAW (1u << 11)        /* raw count beyond the calibrated points */
 #define THRUSTMAP_CLAMPED_DEVICE (1u << 12)     /* raw count beyond the device range */
+#define THRUSTMAP_CLAMPED_LEVER (1u << 13)      /* lever angle beyond the end stops: held at the stop */
 
 /* The air data and configuration a command or target is computed at. */
 typedef struct {

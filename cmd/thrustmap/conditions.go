@@ -78,7 +78,7 @@ func (f *conditionFlags) parse(needOAT bool) (air, error) {
 		}
 	}
 	if f.oat != "" {
-		if a.oatC, err = quantity.Temperature(f.oat); err != nil {
+		if a.oatC, err = quantity.AirTemperature(f.oat, a.altFt); err != nil {
 			return a, fmt.Errorf("--oat: %w", err)
 		}
 		a.hasOAT = true
@@ -92,7 +92,7 @@ func (f *conditionFlags) parse(needOAT bool) (air, error) {
 		a.hasMach = true
 	}
 	if f.assumed != "" {
-		if a.assumedC, err = quantity.Temperature(f.assumed); err != nil {
+		if a.assumedC, err = quantity.AirTemperature(f.assumed, a.altFt); err != nil {
 			return a, fmt.Errorf("--assumed: %w", err)
 		}
 		a.assumed = true

@@ -896,6 +896,11 @@ func (g *cGen) declarations() {
 	g.code("\n#define TM_NUM_RATINGS %d\n#define TM_NUM_GATES %d\n#define TM_NUM_LEVERS %d\n#define TM_NUM_BLEEDS %d\n",
 		len(g.rats), len(g.gates), len(g.geoms)-1, len(p.Bleeds()))
 	g.code("#define TM_PARAMETER %s\n#define TM_UNIT %s\n", cString(p.Parameter().String()), cString(p.Parameter().Unit()))
+	stops := [2]float64{math.Inf(-1), math.Inf(1)} // no [lever]: no end stops
+	if lv := p.Lever(); lv.TLAMinDeg < lv.TLAMaxDeg {
+		stops = [2]float64{lv.TLAMinDeg, lv.TLAMaxDeg}
+	}
+	g.code("#define TM_TLA_MIN_DEG %s /* the lever's end stops */\n#define TM_TLA_MAX_DEG %s\n", cNum(stops[0]), cNum(stops[1]))
 	g.code(cDeclBody)
 }
 
@@ -1212,6 +1217,7 @@ const cDeclBody = `#define TM_NO_LEVER (-1) /* CommandAtTLA with the profile's o
 #define TM_CLAMP_MACH 0x4u
 #define TM_CLAMP_RAW 0x8u     /* raw counts beyond the calibrated points */
 #define TM_CLAMP_DEVICE 0x10u /* raw counts beyond the device range */
+#define TM_CLAMP_LEVER 0x20u  /* lever angle beyond the end stops: held at the stop */
 
 /* tm_result.reasons: the assumed-temperature rules that acted, in order */
 #define TM_REASON_TA_NOT_ABOVE_OAT 0x1u
@@ -2079,6 +2085,13 @@ static int tm__command_at(tm_lever_state *s, int gi, double tla, uint32_t cl, co
 `
 
 const cCommandBody = `    }
+    if (tla < TM_TLA_MIN_DEG) {
+        tla = TM_TLA_MIN_DEG;
+        cl |= TM_CLAMP_LEVER;
+    } else if (tla > TM_TLA_MAX_DEG) {
+        tla = TM_TLA_MAX_DEG;
+        cl |= TM_CLAMP_LEVER;
+    }
     out->tla_deg = tla;
     out->clamped = cl;
     out->gate = out->lower = out->upper = -1;

@@ -229,7 +229,7 @@ var cSituations = []string{
 	"reason ta_not_above_oat", "reason ta_below_corner", "reason ta_above_max", "reason reduction_limited", "reason reduction_not_checked",
 	"target limited",
 	"command raised", "command limited", "command interlock", "command fallback",
-	"clamped altitude", "clamped temperature", "clamped mach", "clamped raw", "clamped device",
+	"clamped altitude", "clamped temperature", "clamped mach", "clamped raw", "clamped device", "clamped lever",
 	"hysteresis band", "between gates", "in a capture zone", "reverse", "deadband held",
 	"assumed at the corner", "state shared across geometries",
 	fmt.Sprintf("command error %d", cErrCond), fmt.Sprintf("command error %d", cErrLever), fmt.Sprintf("command error %d", cErrInput),

@@ -33,7 +33,7 @@ func (e *Error) Error() string {
 }
 
 // Plausible QNH limits after conversion, and the ranges that decide the unit of
-// a bare QNH (design §3).
+// a bare QNH (docs/units.md).
 const (
 	minQNHHPa     = 800.0
 	maxQNHHPa     = 1100.0
@@ -108,6 +108,41 @@ func Temperature(s string) (celsius float64, err error) {
 	}
 	c = math.Max(c, -atmos.KelvinOffset)
 	return finite(kind, s, c)
+}
+
+// MaxISADeviationC is how far from the ISA temperature at its altitude an
+// air temperature may be: further, it is far outside anything measured in
+// the atmosphere (common practice: recorded extremes lie within about 60 °C
+// of ISA), and almost surely a unit mixed up.
+const MaxISADeviationC = 100.0
+
+// AirTemperature parses an outside-air (or assumed) temperature as
+// Temperature does, and refuses one more than MaxISADeviationC from the ISA
+// temperature at pressure altitude altFt, naming the unit that was likely
+// meant: "300" at sea level is 300 °C, and the error asks "did you mean
+// 300 K?". An altitude outside the standard atmosphere is not checked here.
+func AirTemperature(s string, altFt float64) (celsius float64, err error) {
+	c, err := Temperature(s)
+	if err != nil {
+		return 0, err
+	}
+	isa, aerr := atmos.ISATemperatureC(altFt)
+	if aerr != nil || math.Abs(c-isa) <= MaxISADeviationC {
+		return c, nil
+	}
+	reason := fmt.Sprintf("%.6g °C is %+.0f °C from ISA (%.1f °C) at %.0f ft, beyond any air temperature", c, c-isa, isa, altFt)
+	n, unit, _ := number("temperature", s, strings.TrimSpace(s))
+	unit = strings.ToUpper(strings.TrimPrefix(unit, "°"))
+	try := map[string][]string{"": {"K", "F"}, "C": {"K", "F"}, "F": {"C", "K"}, "K": {"C", "F"}}[unit]
+	for _, u := range try {
+		alt := map[string]float64{"C": n, "F": (n - fahrenheitOff) * 5 / 9, "K": n - atmos.KelvinOffset}[u]
+		if math.Abs(alt-isa) <= MaxISADeviationC {
+			name := map[string]string{"C": "°C", "F": "°F", "K": "K"}[u]
+			reason += fmt.Sprintf(": did you mean %s %s?", strconv.FormatFloat(n, 'g', -1, 64), name)
+			break
+		}
+	}
+	return 0, &Error{"temperature", s, reason}
 }
 
 // QNH parses an altimeter setting and returns it in hectopascals. With a unit,

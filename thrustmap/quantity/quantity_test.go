@@ -149,6 +149,40 @@ func TestTemperature(t *testing.T) {
 	}
 }
 
+// TestAirTemperature: an air temperature more than 100 °C from ISA at its
+// altitude is refused, naming the unit likely meant. ISA temperatures from
+// ICAO Doc 7488/3: 15 °C at sea level, −56.5 °C from 36 089 ft (11 km).
+func TestAirTemperature(t *testing.T) {
+	at := func(alt float64) func(string) (float64, error) {
+		return func(s string) (float64, error) { return AirTemperature(s, alt) }
+	}
+	runCases(t, "AirTemperature", at(0), []parseCase{
+		{"15", 15},
+		{"115", 115},     // 100 °C above ISA: the edge is accepted
+		{"-85", -85},     // 100 °C below ISA
+		{"300K", 26.85},  // 300 − 273.15
+		{"104F", 40},     // (104 − 32)·5/9 = 40
+		{"-40F", -40},    // cold, but an air temperature
+		{"273.15K", 0},   // 0 °C
+		{"140 F", 60},    // an assumed temperature in °F: (140 − 32)·5/9 = 60
+		{"-56.5", -56.5}, // the tropopause's ISA, at sea level: plausible
+	})
+	runErrors(t, "AirTemperature", "temperature", at(0), []errCase{
+		{"300", "300 °C is +285 °C from ISA (15.0 °C) at 0 ft, beyond any air temperature: did you mean 300 K?"},
+		{"0K", "-273.15 °C is -288 °C from ISA (15.0 °C) at 0 ft, beyond any air temperature: did you mean 0 °C?"},
+		{"116", "is +101 °C from ISA"},
+		{"500F", "from ISA"}, // 260 °C; no other unit makes 500 an air temperature either
+		{"15X", `unknown unit "X"`},
+	})
+	runErrors(t, "AirTemperature", "temperature", at(40000), []errCase{
+		{"250", "from ISA (-56.5 °C) at 40000 ft, beyond any air temperature: did you mean 250 K?"}, // 250 K = −23.15 °C
+	})
+	// Beyond the standard atmosphere the altitude is someone else's error.
+	if c, err := AirTemperature("300", 200000); err != nil || c != 300 {
+		t.Errorf("altitude outside the atmosphere: %g, %v", c, err)
+	}
+}
+
 func TestQNH(t *testing.T) {
 	runCases(t, "QNH", QNH, []parseCase{
 		{"1013", 1013},                     // bare 850–1100: hPa (design §3)
@@ -266,7 +300,16 @@ func FuzzTemperature(f *testing.F) {
 	for _, s := range []string{"15", "15C", "59F", "288.15K", "-40c", "-1K", "15X", "Inf"} {
 		f.Add(s)
 	}
-	f.Fuzz(func(t *testing.T, s string) { checkParse(t, "temperature", "C", Temperature, s) })
+	f.Fuzz(func(t *testing.T, s string) {
+		checkParse(t, "temperature", "C", Temperature, s)
+		// As an air temperature at 5000 ft (ISA 5.1 °C): the same value or an
+		// error, and never one more than 100 °C from ISA.
+		air := func(s string) (float64, error) { return AirTemperature(s, 5000) }
+		checkParse(t, "temperature", "C", air, s)
+		if c, err := air(s); err == nil && math.Abs(c-5.094) > MaxISADeviationC+0.01 {
+			t.Fatalf("%q: %g °C accepted at 5000 ft", s, c)
+		}
+	})
 }
 
 func FuzzQNH(f *testing.F) {

@@ -121,6 +121,7 @@ func cmdSet(c *call) error {
 		return usage(c, "set")
 	}
 	next := c.in.cond
+	temps := map[string]string{} // oat and assumed as typed, checked at the final altitude
 	for i := 0; i < len(f); i += 2 {
 		key, val := f[i], f[i+1]
 		var err error
@@ -130,6 +131,7 @@ func cmdSet(c *call) error {
 			c.in.field = nil
 		case "oat":
 			next.OATC, err = quantity.Temperature(val)
+			temps[key] = val
 		case "mach":
 			next.Mach, err = quantity.Mach(val)
 		case "assumed":
@@ -138,6 +140,7 @@ func cmdSet(c *call) error {
 			} else {
 				next.AssumedC, err = quantity.Temperature(val)
 				next.AssumedSet = err == nil
+				temps[key] = val
 			}
 		case "ground":
 			next.OnGround, err = onOff(val)
@@ -150,6 +153,13 @@ func cmdSet(c *call) error {
 	}
 	if _, err := atmos.ISATemperatureC(next.AltitudeFt); err != nil {
 		return fmt.Errorf("set alt: %w", err)
+	}
+	for _, key := range []string{"oat", "assumed"} {
+		if val, ok := temps[key]; ok {
+			if _, err := quantity.AirTemperature(val, next.AltitudeFt); err != nil {
+				return fmt.Errorf("set %s: %w", key, err)
+			}
+		}
 	}
 	c.in.cond = next
 	return nil

@@ -3,6 +3,7 @@ package verify
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/thrustmap/thrustmap/thrustmap"
 )
@@ -106,6 +107,7 @@ func checkCalibration(r *Report, p *thrustmap.Profile, cal *thrustmap.Calibratio
 	for _, l := range cal.Levers() {
 		spec := l.Spec()
 		where := fmt.Sprintf("lever %d", spec.ID)
+		checkLeverSpan(r, p.Lever(), spec, where)
 		var missing []string
 		for k, n := range notches {
 			best := math.Inf(1)
@@ -149,6 +151,41 @@ func checkCalibration(r *Report, p *thrustmap.Profile, cal *thrustmap.Calibratio
 		if hi-lo > capture/2 {
 			r.warnf(CheckLeverSplit, notches[k].Name, "the levers' calibration points for this notch differ by %.2f°: resting side by side in it they read different angles", hi-lo)
 		}
+	}
+}
+
+// spanTolDeg is how far a calibration's end may sit from an end stop and
+// still be taken as reaching it, degrees.
+const spanTolDeg = 0.05
+
+// checkLeverSpan: a lever's calibrated angles run from the profile's aft
+// end stop to its forward one. Short of a stop, the lever cannot command the
+// gates there; past one, the angles beyond it are held at the stop and
+// flagged (clamped "lever").
+func checkLeverSpan(r *Report, lv thrustmap.Lever, spec thrustmap.LeverSpec, where string) {
+	if !(lv.TLAMinDeg < lv.TLAMaxDeg) || len(spec.Points) == 0 {
+		return
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, pt := range spec.Points {
+		lo, hi = math.Min(lo, pt[1]), math.Max(hi, pt[1])
+	}
+	var faults []string
+	switch {
+	case lo > lv.TLAMinDeg+spanTolDeg:
+		faults = append(faults, fmt.Sprintf("stops short of the aft end stop %g°: angles below %g° cannot be commanded", lv.TLAMinDeg, lo))
+	case lo < lv.TLAMinDeg-spanTolDeg:
+		faults = append(faults, fmt.Sprintf("runs past the aft end stop %g° (to %g°): angles there are held at the stop and flagged", lv.TLAMinDeg, lo))
+	}
+	switch {
+	case hi < lv.TLAMaxDeg-spanTolDeg:
+		faults = append(faults, fmt.Sprintf("stops short of the forward end stop %g°: angles above %g° cannot be commanded", lv.TLAMaxDeg, hi))
+	case hi > lv.TLAMaxDeg+spanTolDeg:
+		faults = append(faults, fmt.Sprintf("runs past the forward end stop %g° (to %g°): angles there are held at the stop and flagged", lv.TLAMaxDeg, hi))
+	}
+	if len(faults) > 0 {
+		r.errorf(CheckLeverSpan, where, "calibrated from %g° to %g°, the profile's lever from %g° to %g°: it %s; calibrate the lever from stop to stop or correct tla_min_deg/tla_max_deg",
+			lo, hi, lv.TLAMinDeg, lv.TLAMaxDeg, strings.Join(faults, ", and "))
 	}
 }
 

@@ -30,6 +30,7 @@ const (
 	CheckExpressionFails   = "expression_fails"       // a gate expression errs or is not finite
 	CheckExpressionBounds  = "expression_bounds"      // a gate expression outside physical bounds
 	CheckAssumedMax        = "assumed_max_outside"    // max assumed temperature beyond the table
+	CheckAssumedUnused     = "assumed_unused"         // [assumed_temperature] but no gate commands the reduction
 	CheckReductionLimit    = "reduction_limit"        // max_reduction_pct above the AC 25-13 25 %
 	CheckReductionBinds    = "reduction_limit_binds"  // the thrust limit binds inside the assumed range
 	CheckEPRBelowOne       = "epr_below_one"          // a forward EPR target below 1.0
@@ -37,6 +38,7 @@ const (
 	CheckCaptureNoise      = "capture_below_noise"    // capture under 4 σ of the lever's noise
 	CheckNotchPointMissing = "notch_point_missing"    // no calibration point at a notch gate
 	CheckLeverSplit        = "lever_split"            // levers put one gate at different angles
+	CheckLeverSpan         = "lever_span"             // a calibration that misses or overruns the end stops
 	CheckCalibrationLoad   = "calibration_invalid"    // the calibration does not fit the profile
 	CheckDegreesPerCount   = "degrees_per_count"      // (note) resolution at each gate
 	CheckFile              = "file"                   // the file cannot be read
@@ -128,6 +130,7 @@ func Profile(r *Report, p *thrustmap.Profile, cal *thrustmap.Calibration) {
 	}
 	checkEnvelope(r, p)
 	checkAssumed(r, p, s)
+	checkAssumedUsed(r, p)
 	checkEPR(r, p, s)
 	if len(p.Gates()) > 0 {
 		checkGates(r, p, cal, s)
@@ -427,7 +430,11 @@ func checkAssumed(r *Report, p *thrustmap.Profile, s sampler) {
 				top -= isa
 			}
 			if rt.Basis() != thrustmap.TAT && (top > hi+1e-9 || top < lo) {
-				r.errorf(CheckAssumedMax, fmt.Sprintf("%s, altitude %.0f ft", name, alt), "max assumed temperature %g °C is outside the table's temperatures (%g to %g): the reduced value would be held at the edge", a.MaxC, lo, hi)
+				what := fmt.Sprintf("outside the table's OATs (%g to %g °C)", lo, hi)
+				if rt.Basis() == thrustmap.ISADev {
+					what = fmt.Sprintf("ISA%+.3g at %s, outside the table's ISA deviations (%+g to %+g)", top, altitudeName(alt), lo, hi)
+				}
+				r.errorf(CheckAssumedMax, fmt.Sprintf("%s, altitude %.0f ft", name, alt), "max assumed temperature %g °C is %s: the reduced value would be held at the edge", a.MaxC, what)
 				break
 			}
 		}
@@ -451,6 +458,33 @@ func checkAssumed(r *Report, p *thrustmap.Profile, s sampler) {
 				a.MaxReductionPct, a.MaxC, strings.Join(binds, "; "))
 		}
 	}
+}
+
+// altitudeName says "sea level" for 0 ft, else the altitude in feet.
+func altitudeName(alt float64) string {
+	if alt == 0 {
+		return "sea level"
+	}
+	return fmt.Sprintf("%.0f ft", alt)
+}
+
+// checkAssumedUsed: a profile with gates and [assumed_temperature] has a
+// gate that commands the reduction; a gate naming a rating commands its full
+// value, so without one the assumed temperature changes nothing at the lever.
+func checkAssumedUsed(r *Report, p *thrustmap.Profile) {
+	a := p.AssumedTemperature()
+	if a == nil || len(p.Gates()) == 0 {
+		return
+	}
+	for i := range p.Gates() {
+		if p.GateReduces(i) {
+			return
+		}
+	}
+	name := a.Ratings[0]
+	r.warnf(CheckAssumedUnused, "assumed_temperature", "no gate commands the reduction, so an assumed temperature changes nothing at the lever: "+
+		"a gate with rating = %q commands the full rating; give a gate target = \"assumed('%s')\" (a reduced-takeoff gate of its own, with when = \"on_ground && assumed_set\"), "+
+		"or apply it inside the takeoff gate with target = \"assumed_set ? assumed('%s') : rating('%s')\"", name, name, name, name)
 }
 
 // checkEPR: forward EPR targets are at least 1.0.
