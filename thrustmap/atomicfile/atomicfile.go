@@ -19,14 +19,56 @@ const BackupSuffix = ".bak"
 // backup is true and path already exists, its previous contents are kept in
 // path+BackupSuffix (replacing an older backup) before the new file takes its
 // place.
-func WriteFile(path string, data []byte, perm os.FileMode, backup bool) (err error) {
+func WriteFile(path string, data []byte, perm os.FileMode, backup bool) error {
+	tmp, err := writeTemp(path, data, perm)
+	if err != nil {
+		return err
+	}
+	if backup {
+		if err := keepBackup(path); err != nil {
+			os.Remove(tmp)
+			return fmt.Errorf("back up %s: %w", path, err)
+		}
+	}
+	if err := os.Rename(tmp, path); err != nil {
+		os.Remove(tmp)
+		return fmt.Errorf("write %s: %w", path, err)
+	}
+	syncDir(filepath.Dir(path))
+	return nil
+}
+
+// CreateFile writes data to a new file at path, complete or not at all, as
+// WriteFile does, but never replaces an existing file: then it returns an
+// error that matches fs.ErrExist and leaves the file untouched. The new file
+// takes its name by a hard link, which fails atomically if the name exists.
+func CreateFile(path string, data []byte, perm os.FileMode) error {
+	tmp, err := writeTemp(path, data, perm)
+	if err != nil {
+		return err
+	}
+	defer os.Remove(tmp)
+	if err := os.Link(tmp, path); err != nil {
+		var le *os.LinkError
+		if errors.As(err, &le) {
+			err = le.Err
+		}
+		return fmt.Errorf("write %s: %w", path, err)
+	}
+	syncDir(filepath.Dir(path))
+	return nil
+}
+
+// writeTemp writes data to a synced temporary file beside path and returns
+// its name.
+func writeTemp(path string, data []byte, perm os.FileMode) (name string, err error) {
 	dir, base := filepath.Split(path)
 	if dir == "" {
 		dir = "."
 	}
 	tmp, err := os.CreateTemp(dir, "."+base+".tmp-*")
 	if err != nil {
-		return fmt.Errorf("write %s: %w", path, err)
+		return "", fmt.Errorf("write %s: %w", path, err)
 	}
 	defer func() {
 		if err != nil {
@@ -35,27 +77,18 @@ func WriteFile(path string, data []byte, perm os.FileMode, backup bool) (err err
 		}
 	}()
 	if _, err = tmp.Write(data); err != nil {
-		return fmt.Errorf("write %s: %w", path, err)
+		return "", fmt.Errorf("write %s: %w", path, err)
 	}
 	if err = tmp.Chmod(perm); err != nil {
-		return fmt.Errorf("write %s: %w", path, err)
+		return "", fmt.Errorf("write %s: %w", path, err)
 	}
 	if err = tmp.Sync(); err != nil {
-		return fmt.Errorf("write %s: %w", path, err)
+		return "", fmt.Errorf("write %s: %w", path, err)
 	}
 	if err = tmp.Close(); err != nil {
-		return fmt.Errorf("write %s: %w", path, err)
+		return "", fmt.Errorf("write %s: %w", path, err)
 	}
-	if backup {
-		if err = keepBackup(path); err != nil {
-			return fmt.Errorf("back up %s: %w", path, err)
-		}
-	}
-	if err = os.Rename(tmp.Name(), path); err != nil {
-		return fmt.Errorf("write %s: %w", path, err)
-	}
-	syncDir(dir)
-	return nil
+	return tmp.Name(), nil
 }
 
 // keepBackup copies path to path+BackupSuffix, itself atomically, so the

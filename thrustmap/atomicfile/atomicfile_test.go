@@ -1,6 +1,8 @@
 package atomicfile
 
 import (
+	"errors"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"testing"
@@ -45,5 +47,26 @@ func TestWriteFileMissingDir(t *testing.T) {
 	err := WriteFile(filepath.Join(t.TempDir(), "no", "such", "f"), []byte("x"), 0o644, false)
 	if err == nil {
 		t.Fatal("want an error for a missing directory")
+	}
+}
+
+// TestCreateFileNeverReplaces: a new file is written whole; an existing one
+// is left byte for byte as it was, with an error matching fs.ErrExist, and
+// no temporary file is left behind either way.
+func TestCreateFileNeverReplaces(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "profile.toml")
+	if err := CreateFile(path, []byte("first"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	err := CreateFile(path, []byte("second"), 0o644)
+	if !errors.Is(err, fs.ErrExist) {
+		t.Errorf("second create: err = %v, want fs.ErrExist", err)
+	}
+	if b, _ := os.ReadFile(path); string(b) != "first" {
+		t.Errorf("file holds %q, want it untouched", b)
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) != 1 {
+		t.Errorf("directory holds %d entries, want 1 (no temporary file left)", len(entries))
 	}
 }
