@@ -10,23 +10,35 @@ import (
 )
 
 // FileError is one fault in an input file, with its place: the file, the
-// line (0 when unknown) and the key path ("rating[2].values[3]"), modelled on
-// encoding/csv's ParseError.
+// line (0 when unknown), the column (in a table CSV file; 0 when unknown) and
+// the key path ("rating[2].values[3]"), modelled on encoding/csv's
+// ParseError.
 type FileError struct {
-	File string
-	Line int
-	Key  string
-	Code string // a stable code for the kind of fault (see the Check constants)
-	Err  error
+	File   string
+	Line   int
+	Column int // 1-based byte column
+	Key    string
+	Code   string // a stable code for the kind of fault (see the Check constants)
+	Err    error
 }
 
-// Error prints "FILE:LINE: KEY: message", leaving out what is unknown.
-func (e *FileError) Error() string {
+// Place prints "FILE:LINE:COL", leaving out what is unknown.
+func (e *FileError) Place() string {
 	var b strings.Builder
 	b.WriteString(e.File)
 	if e.Line > 0 {
 		fmt.Fprintf(&b, ":%d", e.Line)
+		if e.Column > 0 {
+			fmt.Fprintf(&b, ":%d", e.Column)
+		}
 	}
+	return b.String()
+}
+
+// Error prints "FILE:LINE:COL: KEY: message", leaving out what is unknown.
+func (e *FileError) Error() string {
+	var b strings.Builder
+	b.WriteString(e.Place())
 	if e.Key != "" {
 		b.WriteString(": ")
 		b.WriteString(e.Key)
