@@ -3,10 +3,13 @@ package thrustmap
 import (
 	"bytes"
 	"embed"
+	"errors"
 	"fmt"
+	"io/fs"
 	"math"
 	"os"
 	"path"
+	"path/filepath"
 	"reflect"
 	"slices"
 	"strings"
@@ -17,7 +20,9 @@ import (
 	"github.com/thrustmap/thrustmap/thrustmap/grid"
 )
 
-//go:embed profiles/*.toml
+// The embedded profiles, and any table files they name, live in profiles/.
+//
+//go:embed profiles
 var embedded embed.FS
 
 // EmbeddedPrefix starts the Source of an embedded profile.
@@ -29,7 +34,9 @@ func EmbeddedProfiles() []string {
 	entries, _ := embedded.ReadDir("profiles")
 	var names []string
 	for _, e := range entries {
-		names = append(names, strings.TrimSuffix(e.Name(), ".toml"))
+		if name, ok := strings.CutSuffix(e.Name(), ".toml"); ok {
+			names = append(names, name)
+		}
 	}
 	return names
 }
@@ -42,7 +49,9 @@ func EmbeddedProfileText(name string) ([]byte, bool) {
 
 // LoadProfile reads a profile from a file, or selects an embedded one when
 // nameOrPath is an embedded profile's name (an argument that holds a "/" or
-// ends in ".toml" is always a path).
+// ends in ".toml" is always a path). The table files a profile names
+// (table_file, thrust_file, delta_file) are read relative to the profile
+// file's directory; an embedded profile's from the embedded profiles.
 func LoadProfile(nameOrPath string) (*Profile, error) {
 	src, b, err := readNamed(nameOrPath, EmbeddedProfileText)
 	if err != nil {
@@ -51,7 +60,44 @@ func LoadProfile(nameOrPath string) (*Profile, error) {
 		}
 		return nil, err
 	}
-	return ParseProfile(src, b)
+	if name, ok := strings.CutPrefix(src, EmbeddedPrefix); ok {
+		files := fsTables(embedded, path.Join("profiles", name+".toml"))
+		return parseProfile(src, b, func(ref string) (string, []byte, error) {
+			name, data, err := files(ref)
+			return EmbeddedPrefix + strings.TrimPrefix(name, "profiles/"), data, err
+		})
+	}
+	return parseProfile(src, b, diskTables(filepath.Dir(src)))
+}
+
+// tableReader reads a table file a profile names (table_file, thrust_file,
+// delta_file) and returns the name to report it by and its text. A nil
+// tableReader means the profile has no directory to read from.
+type tableReader func(ref string) (name string, data []byte, err error)
+
+// diskTables reads table files relative to dir (absolute names as they are).
+func diskTables(dir string) tableReader {
+	return func(ref string) (string, []byte, error) {
+		name := filepath.FromSlash(ref)
+		if !filepath.IsAbs(name) {
+			name = filepath.Join(dir, name)
+		}
+		data, err := os.ReadFile(name)
+		return name, data, err
+	}
+}
+
+// fsTables reads table files from fsys relative to the directory of the
+// profile at file.
+func fsTables(fsys fs.FS, file string) tableReader {
+	return func(ref string) (string, []byte, error) {
+		name := path.Join(path.Dir(file), ref)
+		if path.IsAbs(ref) || !fs.ValidPath(name) {
+			return name, nil, fmt.Errorf("%q is outside the directory tree the profile was loaded from", ref)
+		}
+		data, err := fs.ReadFile(fsys, name)
+		return name, data, err
+	}
 }
 
 // readNamed returns the text of an embedded file when nameOrPath is a name
@@ -108,8 +154,10 @@ type ratingFile struct {
 	TemperatureC  []float64 `toml:"temperature_c"`
 	Mach          []float64 `toml:"mach"`
 	Values        any       `toml:"values"`
+	TableFile     string    `toml:"table_file"` // CSV with the axes and values instead
 	Interpolation string    `toml:"interpolation"`
 	ThrustKN      any       `toml:"thrust_kn"`
+	ThrustFile    string    `toml:"thrust_file"` // CSV with the thrust grid instead
 	CornerISADevC *float64  `toml:"corner_isa_dev_c"`
 	CornerC       []float64 `toml:"corner_c"`
 }
@@ -122,6 +170,7 @@ type correctionFile struct {
 	TemperatureC  []float64 `toml:"temperature_c"`
 	Mach          []float64 `toml:"mach"`
 	DeltaValues   any       `toml:"delta_values"`
+	DeltaFile     string    `toml:"delta_file"` // CSV with the axes and delta values instead
 	Interpolation string    `toml:"interpolation"`
 }
 
@@ -160,8 +209,23 @@ const ProfileSchema = 1
 
 // ParseProfile decodes and checks a profile's TOML text. file names the
 // source in errors and in Source. Every fault found is reported, each with
-// its line and key path, as FileErrors.
+// its line and key path, as FileErrors. ParseProfile has no directory to
+// read table files from: a profile that names one (table_file, thrust_file,
+// delta_file) is an error here; load it with LoadProfile or ParseProfileFS.
 func ParseProfile(file string, data []byte) (*Profile, error) {
+	return parseProfile(file, data, nil)
+}
+
+// ParseProfileFS is ParseProfile for a profile that lives in fsys at file (a
+// slash-separated path, as fs.ValidPath wants): the table files it names are
+// read from fsys relative to file's directory, and may not lead out of
+// fsys. file names the profile in errors and in Source, and a table file's
+// path in fsys names it in errors.
+func ParseProfileFS(fsys fs.FS, file string, data []byte) (*Profile, error) {
+	return parseProfile(file, data, fsTables(fsys, file))
+}
+
+func parseProfile(file string, data []byte, files tableReader) (*Profile, error) {
 	var f profileFile
 	dec := toml.NewDecoder(bytes.NewReader(data))
 	dec.DisallowUnknownFields()
@@ -169,7 +233,7 @@ func ParseProfile(file string, data []byte) (*Profile, error) {
 		return nil, tomlError(file, err, reflect.TypeFor[profileFile]())
 	}
 	c := &collector{file: file, lines: indexKeyLines(data), broken: map[string]bool{}}
-	p := buildProfile(c, &f)
+	p := buildProfile(c, &f, files)
 	if err := c.err(); err != nil {
 		return nil, err
 	}
@@ -179,7 +243,7 @@ func ParseProfile(file string, data []byte) (*Profile, error) {
 
 // buildProfile checks the decoded file and builds the profile, recording
 // every fault in c.
-func buildProfile(c *collector, f *profileFile) *Profile {
+func buildProfile(c *collector, f *profileFile, files tableReader) *Profile {
 	p := &Profile{name: f.Name, description: f.Description, byName: map[string]*Rating{}, redline: math.Inf(1), engines: 1}
 	if f.Schema != ProfileSchema {
 		if !c.lines.has("schema") {
@@ -218,7 +282,7 @@ func buildProfile(c *collector, f *profileFile) *Profile {
 		c.add("rating", "no [[rating]] tables: a profile needs at least one rating")
 	}
 	for i := range f.Rating {
-		r := buildRating(c, fmt.Sprintf("rating[%d]", i), &f.Rating[i], param)
+		r := buildRating(c, fmt.Sprintf("rating[%d]", i), &f.Rating[i], param, files)
 		if r == nil && f.Rating[i].Name != "" {
 			c.broken[f.Rating[i].Name] = true // its own faults are reported; do not echo them
 		}
@@ -232,7 +296,7 @@ func buildProfile(c *collector, f *profileFile) *Profile {
 		}
 	}
 	for i := range f.Correction {
-		buildCorrection(c, fmt.Sprintf("correction[%d]", i), &f.Correction[i], p)
+		buildCorrection(c, fmt.Sprintf("correction[%d]", i), &f.Correction[i], p, files)
 	}
 	if f.Assumed != nil {
 		p.assumed = buildAssumed(c, f.Assumed, p)
@@ -303,7 +367,7 @@ func buildEnvelope(c *collector, f *envelopeFile, p *Profile) {
 
 // buildRating checks one [[rating]] table; it returns nil when the rating
 // cannot be built (the faults are in c).
-func buildRating(c *collector, key string, f *ratingFile, param Parameter) *Rating {
+func buildRating(c *collector, key string, f *ratingFile, param Parameter, files tableReader) *Rating {
 	r := &Rating{name: f.Name, description: f.Description}
 	if f.Name == "" {
 		c.add(key+".name", "missing: every rating needs a name")
@@ -317,25 +381,52 @@ func buildRating(c *collector, key string, f *ratingFile, param Parameter) *Rati
 	if err != nil {
 		c.add(key+".interpolation", "%v", err)
 	}
-	axes := axesOf(c, key, f.AltitudeFt, f.TemperatureC, f.Mach)
-	if f.Values == nil {
-		c.add(key+".values", "missing: every rating needs values")
-		return nil
-	}
 	lo, hi := param.Bounds()
-	table := gridOf(c, key, "values", f.Values, axes, method, func(v float64) string {
+	inBounds := func(v float64) string {
 		if v < lo || v > hi {
 			return fmt.Sprintf("%g is outside the physical range of %s (%g to %g)", v, param, lo, hi)
 		}
 		return ""
-	})
-	if f.ThrustKN != nil {
-		r.thrust = gridOf(c, key, "thrust_kn", f.ThrustKN, axes, method, func(v float64) string {
-			if v < 0 {
-				return fmt.Sprintf("%g kN is negative", v)
+	}
+	thrustBounds := func(v float64) string {
+		if v < 0 {
+			return fmt.Sprintf("%g kN is negative", v)
+		}
+		return ""
+	}
+	var axes [grid.NumAxes][]float64
+	var table *grid.Grid
+	rows := "" // where the altitude rows are, for messages
+	if c.lines.has(key + ".table_file") {
+		notWithFile(c, key, "table_file", map[string]bool{"altitude_ft": f.AltitudeFt != nil, "temperature_c": f.TemperatureC != nil,
+			"mach": f.Mach != nil, "values": f.Values != nil})
+		t := readTable(c, files, key+".table_file", f.TableFile)
+		if t == nil || !checkTable(c, t, inBounds) {
+			for a := range axes {
+				axes[a] = []float64{} // unknown: checks against the axes are skipped
 			}
-			return ""
-		})
+		} else {
+			axes, rows = t.Axes, " of "+t.File
+			table = tableGrid(c, key+".table_file", t, method)
+		}
+	} else {
+		axes = axesOf(c, key, f.AltitudeFt, f.TemperatureC, f.Mach)
+		if f.Values == nil {
+			c.add(key+".values", "missing: every rating needs values (or a table_file)")
+			return nil
+		}
+		table = gridOf(c, key, "values", f.Values, axes, method, inBounds)
+	}
+	switch hasFile := c.lines.has(key + ".thrust_file"); {
+	case hasFile && f.ThrustKN != nil:
+		c.add(key+".thrust_file", "give thrust_kn or thrust_file, not both")
+	case hasFile:
+		t := readTable(c, files, key+".thrust_file", f.ThrustFile)
+		if t != nil && checkTable(c, t, thrustBounds) && sameAxes(c, t, axes) {
+			r.thrust = tableGrid(c, key+".thrust_file", t, method)
+		}
+	case f.ThrustKN != nil:
+		r.thrust = gridOf(c, key, "thrust_kn", f.ThrustKN, axes, method, thrustBounds)
 	}
 	switch {
 	case f.CornerISADevC != nil && f.CornerC != nil:
@@ -348,10 +439,12 @@ func buildRating(c *collector, key string, f *ratingFile, param Parameter) *Rati
 		r.corner = corner{kind: cornerISADev, isaDev: d}
 	case f.CornerC != nil:
 		switch {
+		case !usableAxes(axes):
+			// the axes' own faults are reported
 		case axes[grid.Altitude] == nil:
 			c.add(key+".corner_c", "needs an altitude_ft axis (one corner per altitude row); use corner_isa_dev_c for a table without one")
 		case len(f.CornerC) != len(axes[grid.Altitude]):
-			c.add(key+".corner_c", "has %d temperatures, want %d (one per altitude_ft row)", len(f.CornerC), len(axes[grid.Altitude]))
+			c.add(key+".corner_c", "has %d temperatures, want %d (one per altitude_ft row%s)", len(f.CornerC), len(axes[grid.Altitude]), rows)
 		default:
 			for i, t := range f.CornerC {
 				if math.IsNaN(t) || t < -90 || t > 90 {
@@ -373,9 +466,8 @@ func buildRating(c *collector, key string, f *ratingFile, param Parameter) *Rati
 // absent axis).
 func axesOf(c *collector, key string, alt, temp, mach []float64) [grid.NumAxes][]float64 {
 	axes := [grid.NumAxes][]float64{alt, temp, mach}
-	names := [grid.NumAxes]string{"altitude_ft", "temperature_c", "mach"}
 	for a, xs := range axes {
-		k := key + "." + names[a]
+		k := key + "." + AxisColumn(grid.Axis(a))
 		if xs == nil && !c.lines.has(k) {
 			continue
 		}
@@ -419,7 +511,7 @@ func gridOf(c *collector, key, field string, raw any, axes [grid.NumAxes][]float
 			usable = false
 		}
 		shape = append(shape, len(xs))
-		names = append(names, [...]string{"altitude_ft", "temperature_c", "mach"}[a])
+		names = append(names, AxisColumn(grid.Axis(a)))
 	}
 	if !usable {
 		return nil
@@ -436,6 +528,139 @@ func gridOf(c *collector, key, field string, raw any, axes [grid.NumAxes][]float
 		return nil
 	}
 	return g
+}
+
+// notWithFile reports each inline key given (present[key]) beside the table
+// file key fileKey, which holds them instead; it returns whether any was.
+func notWithFile(c *collector, key, fileKey string, present map[string]bool) bool {
+	var given []string
+	for k, ok := range present {
+		if ok {
+			given = append(given, k)
+		}
+	}
+	slices.SortFunc(given, func(a, b string) int { return c.lines.line(key+"."+a) - c.lines.line(key+"."+b) })
+	for _, k := range given {
+		c.add(key+"."+k, "give %s or %s, not both: the CSV file holds the axes and the numbers", k, fileKey)
+	}
+	return len(given) > 0
+}
+
+// readTable reads and parses the table file ref that key names; nil when it
+// cannot (the faults are in c, those inside the file with its lines and
+// columns).
+func readTable(c *collector, files tableReader, key, ref string) *TableCSV {
+	if strings.TrimSpace(ref) == "" {
+		c.add(key, "is empty, want the name of a CSV file (relative to the profile's directory)")
+		return nil
+	}
+	if files == nil {
+		c.addCode(CheckTableFile, key, "cannot read %q: the profile was parsed without a directory to read it from (load the profile from its file)", ref)
+		return nil
+	}
+	name, data, err := files(ref)
+	if err != nil {
+		c.addCode(CheckTableFile, key, "cannot read %q: %v", ref, err)
+		return nil
+	}
+	t, err := ParseTableCSV(name, data)
+	if err != nil {
+		var list FileErrors
+		if errors.As(err, &list) {
+			for _, e := range list {
+				c.addFileError(e)
+			}
+		} else {
+			c.addCode(CheckTableFile, key, "%s: %v", name, err)
+		}
+		return nil
+	}
+	return t
+}
+
+// addFileError records a fault found in another file (a table file).
+func (c *collector) addFileError(e *FileError) {
+	if len(c.errs) < maxFileErrors {
+		c.errs = append(c.errs, e)
+	}
+}
+
+// checkTable applies a profile's checks to a table read from a file, naming
+// the file, line and column of what it rejects: check on every value, and
+// Mach from 0 to 5 (as axesOf for inline axes). It reports whether the
+// table passed.
+func checkTable(c *collector, t *TableCSV, check func(float64) string) bool {
+	before := len(c.errs)
+	if xs := t.Axes[grid.Mach]; xs != nil && (xs[0] < 0 || xs[len(xs)-1] > 5) {
+		i := 0
+		if xs[0] >= 0 {
+			i = len(xs) - 1
+		}
+		c.addFileError(t.errAt(t.axisAt[grid.Mach][i], CheckInvalid, "mach runs from %g to %g, want Mach numbers from 0 to 5", xs[0], xs[len(xs)-1]))
+	}
+	for i, v := range t.Values {
+		if msg := check(v); msg != "" {
+			c.addFileError(t.errAt(t.valueAt[i], CheckBounds, "value at %s: %s", t.point(i), msg))
+		}
+	}
+	return len(c.errs) == before
+}
+
+// tableGrid builds the grid of a table read from a file.
+func tableGrid(c *collector, key string, t *TableCSV, method grid.Method) *grid.Grid {
+	g, err := t.Grid(method)
+	if err != nil {
+		c.add(key, "%s: %v", t.File, err) // unreachable: ParseTableCSV checks what grid.New does
+	}
+	return g
+}
+
+// usableAxes reports whether every present axis has the two points a grid
+// needs (an axis whose faults were reported is left empty).
+func usableAxes(axes [grid.NumAxes][]float64) bool {
+	for _, xs := range axes {
+		if xs != nil && len(xs) < 2 {
+			return false
+		}
+	}
+	return true
+}
+
+// sameAxes reports whether the thrust table t has exactly the rating's axes
+// (a thrust grid is on the values' grid), recording the first difference at
+// its place in t; unusable axes are not compared.
+func sameAxes(c *collector, t *TableCSV, axes [grid.NumAxes][]float64) bool {
+	if !usableAxes(axes) {
+		return false
+	}
+	const why = "thrust_file must be on the grid of the rating's values"
+	for a := grid.Altitude; a < grid.NumAxes; a++ {
+		name, got, want := AxisColumn(a), t.Axes[a], axes[a]
+		switch {
+		case got == nil && want == nil:
+		case got == nil:
+			c.addFileError(t.errAt(t.header, CheckGridShape, "has no %s axis; the values have %d %s points from %g to %g (%s)", name, len(want), name, want[0], want[len(want)-1], why))
+			return false
+		case want == nil:
+			c.addFileError(t.errAt(t.axisAt[a][0], CheckGridShape, "has a %s axis; the values have none (%s)", name, why))
+			return false
+		default:
+			for i := range max(len(got), len(want)) {
+				switch {
+				case i >= len(got):
+					c.addFileError(t.errAt(t.axisAt[a][len(got)-1], CheckGridShape, "has %d %s points, the values have %d: %s %g is missing (%s)", len(got), name, len(want), name, want[i], why))
+					return false
+				case i >= len(want):
+					c.addFileError(t.errAt(t.axisAt[a][i], CheckGridShape, "has %d %s points, the values have %d: %s %g is extra (%s)", len(got), name, len(want), name, got[i], why))
+					return false
+				case got[i] != want[i]:
+					c.addFileError(t.errAt(t.axisAt[a][i], CheckGridShape, "%s point %d is %g where the values have %g (%s)", name, i+1, got[i], want[i], why))
+					return false
+				}
+			}
+		}
+	}
+	return true
 }
 
 // flatten appends the numbers of a nested array of the given shape to flat,
@@ -495,7 +720,7 @@ func typeName(v any) string {
 }
 
 // buildCorrection checks one [[correction]] and attaches it to its rating.
-func buildCorrection(c *collector, key string, f *correctionFile, p *Profile) {
+func buildCorrection(c *collector, key string, f *correctionFile, p *Profile, files tableReader) {
 	r, ok := p.byName[f.Rating]
 	if c.broken[f.Rating] {
 		return
@@ -509,6 +734,22 @@ func buildCorrection(c *collector, key string, f *correctionFile, p *Profile) {
 	}
 	corr := Correction{Bleed: bleed}
 	switch {
+	case c.lines.has(key + ".delta_file"):
+		if notWithFile(c, key, "delta_file", map[string]bool{"delta": f.Delta != nil, "delta_values": f.DeltaValues != nil,
+			"altitude_ft": f.AltitudeFt != nil, "temperature_c": f.TemperatureC != nil, "mach": f.Mach != nil}) {
+			return
+		}
+		method, err := grid.ParseMethod(f.Interpolation)
+		if err != nil {
+			c.add(key+".interpolation", "%v", err)
+		}
+		t := readTable(c, files, key+".delta_file", f.DeltaFile)
+		if t == nil || !checkTable(c, t, func(float64) string { return "" }) {
+			return
+		}
+		if corr.Grid = tableGrid(c, key+".delta_file", t, method); corr.Grid == nil {
+			return
+		}
 	case f.Delta != nil && f.DeltaValues != nil:
 		c.add(key+".delta_values", "give delta or delta_values, not both")
 		return
@@ -532,7 +773,7 @@ func buildCorrection(c *collector, key string, f *correctionFile, p *Profile) {
 			return
 		}
 	default:
-		c.add(key, "needs delta (a constant) or delta_values (a grid)")
+		c.add(key, "needs delta (a constant), delta_values (a grid) or delta_file (a grid in a CSV file)")
 		return
 	}
 	if !ok || bleed < 0 {

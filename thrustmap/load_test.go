@@ -178,15 +178,19 @@ func TestLoadProfileFile(t *testing.T) {
 }
 
 // FuzzParseProfile: no input may panic the parser; whatever it accepts must
-// answer Target for every rating without NaN.
+// answer Target for every rating without NaN. The profile sits beside the
+// table files of tableFiles, so table_file, thrust_file and delta_file are
+// fuzzed too.
 func FuzzParseProfile(f *testing.F) {
 	f.Add([]byte(minimal))
+	f.Add([]byte(tableProfile))
 	for _, name := range EmbeddedProfiles() {
 		b, _ := EmbeddedProfileText(name)
 		f.Add(b)
 	}
+	fsys := tableFS("", tableFiles())
 	f.Fuzz(func(t *testing.T, doc []byte) {
-		p, err := ParseProfile("fuzz.toml", doc)
+		p, err := ParseProfileFS(fsys, "eng/p.toml", doc)
 		if err != nil {
 			var list FileErrors
 			if !errors.As(err, &list) {

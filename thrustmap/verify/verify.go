@@ -103,7 +103,11 @@ func loadFindings(r *Report, err error) {
 	}
 	for _, e := range list {
 		where := e.Key
-		if e.Line > 0 {
+		switch {
+		case e.File != r.Path && e.File != thrustmap.EmbeddedPrefix+r.Path:
+			// in a file the profile names (a table_file): FILE:LINE:COL
+			where = strings.TrimSuffix(e.Place()+": "+e.Key, ": ")
+		case e.Line > 0:
 			where = fmt.Sprintf("line %d: %s", e.Line, e.Key)
 		}
 		r.errorf(e.Code, where, "%v", e.Err)
