@@ -73,12 +73,15 @@ profile name (demo, demo-epr, demo-turboprop).
 
 Exit status: 0 ok, 1 checks failed, 2 bad input or usage.
 
+` + helpTopicsText() + `
+
 ` + safetyNote,
 		SilenceUsage:  true,
 		SilenceErrors: true,
 	}
 	root.SetOut(stdout)
 	root.SetErr(stderr)
+	root.SetHelpCommand(newHelpCmd(root))
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return fmt.Errorf("%s: %w (see %s --help)", c.CommandPath(), err, c.CommandPath())
 	})
