@@ -13,14 +13,15 @@ import (
 
 func newExportCmd() *cobra.Command {
 	cmd := &cobra.Command{
-		Use:   "export grid|lever|c ...",
-		Short: "Write a rating as a dense grid, a calibration as a lookup table, or a profile as C source",
-		Long: `export writes thrustmap's data for other programs. Each export states its grid
-and the interpolation error it measured against the source.
+		Use:   "export grid|table|lever|c ...",
+		Short: "Write a rating as a dense grid or as its own table, a calibration as a lookup table, or a profile as C source",
+		Long: `export writes thrustmap's data for other programs. Each export states its grid;
+grid and lever also state the interpolation error they measured against the
+source, and table writes a rating's own grid as a profile's table_file reads it.
 
 ` + safetyNote,
 	}
-	cmd.AddCommand(newExportGridCmd(), newExportLeverCmd())
+	cmd.AddCommand(newExportGridCmd(), newExportTableCmd(), newExportLeverCmd())
 	if c := newExportCCmd(); c != nil {
 		cmd.AddCommand(c)
 	}
@@ -92,6 +93,66 @@ the source at the centre of every cell.
 	cmd.Flags().Float64Var(&steps.Mach, "mach-step", 0, "Mach step (0: the table's points)")
 	cmd.Flags().StringArrayVar(&bleeds, "bleed", nil, "include this bleed's correction (repeatable)")
 	cmd.Flags().StringVarP(&out, "out", "o", "", "file to write: .csv or .json")
+	return cmd
+}
+
+func newExportTableCmd() *cobra.Command {
+	var profile, rating, out, which string
+	cmd := &cobra.Command{
+		Use:   "table -p PROFILE --rating NAME [--grid values|thrust] -o FILE.csv",
+		Short: "A rating's own table as CSV, for a spreadsheet or a profile's table_file",
+		Long: `export table writes one grid of a rating as it is in the profile: its values
+(--grid values, the default) or its rated-thrust grid (--grid thrust), on the
+rating's own axis points — not resampled, without bleed corrections or the
+redline. A table of altitude × temperature is written wide (altitude_ft down
+the first column, temperature_c along the first row); any other, one row per
+grid point (the axis columns, then value). Lines starting with # say what the
+file holds. A profile reads the file back as it is with table_file (or
+thrust_file) in its [[rating]].
+
+` + safetyNote,
+		Args: cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, _ []string) error {
+			if profile == "" || rating == "" || out == "" {
+				return fmt.Errorf("-p PROFILE, --rating NAME and -o FILE.csv are required")
+			}
+			if !strings.HasSuffix(out, ".csv") {
+				return fmt.Errorf("-o %s: want a .csv file", out)
+			}
+			if which != export.GridValues && which != export.GridThrust {
+				return fmt.Errorf("--grid %s: want %s or %s", which, export.GridValues, export.GridThrust)
+			}
+			p, err := thrustmap.LoadProfile(profile)
+			if err != nil {
+				return err
+			}
+			t, err := export.RatingTable(p, rating, which)
+			if err != nil {
+				return err
+			}
+			if err := writeExport(out, t.CSV()); err != nil {
+				return err
+			}
+			var sizes []string
+			for _, a := range t.Axes() {
+				sizes = append(sizes, fmt.Sprintf("%d %s", len(a.Points), a.Name))
+			}
+			shape := strings.Join(sizes, " × ")
+			if shape == "" {
+				shape = "a single value"
+			}
+			what := t.Parameter + ", " + t.Unit
+			if which == export.GridThrust {
+				what = t.Unit
+			}
+			fmt.Fprintf(cmd.OutOrStdout(), "wrote %s: %s %s (%s), %s, %s layout\n", out, rating, which, what, shape, t.Layout)
+			return nil
+		},
+	}
+	cmd.Flags().StringVarP(&profile, "profile", "p", "", "profile file or embedded name")
+	cmd.Flags().StringVar(&rating, "rating", "", "rating to export")
+	cmd.Flags().StringVar(&which, "grid", export.GridValues, "which grid: values or thrust")
+	cmd.Flags().StringVarP(&out, "out", "o", "", "file to write (.csv)")
 	return cmd
 }
 

@@ -57,7 +57,6 @@ func DenseRating(p *thrustmap.Profile, rating string, s Steps, bleeds thrustmap.
 	t := r.Table()
 	d := &Dense{Rating: rating, Parameter: p.Parameter().String(), Unit: p.Parameter().Unit(),
 		Temperature: r.Basis().String(), Bleeds: p.BleedNames(bleeds)}
-	names := [grid.NumAxes]string{"altitude_ft", "temperature_c", "mach"}
 	steps := [grid.NumAxes]float64{s.AltitudeFt, s.Temperature, s.Mach}
 	var axes [grid.NumAxes][]float64
 	for a := grid.Altitude; a < grid.NumAxes; a++ {
@@ -66,10 +65,10 @@ func DenseRating(p *thrustmap.Profile, rating string, s Steps, bleeds thrustmap.
 		}
 		pts, err := stepped(t.Axis(a), steps[a])
 		if err != nil {
-			return nil, fmt.Errorf("%s step: %w", names[a], err)
+			return nil, fmt.Errorf("%s step: %w", thrustmap.AxisColumn(a), err)
 		}
 		axes[a] = pts
-		d.Axes = append(d.Axes, Axis{names[a], pts})
+		d.Axes = append(d.Axes, Axis{thrustmap.AxisColumn(a), pts})
 	}
 	eval := func(q [grid.NumAxes]float64) float64 { return value(p, r, q, bleeds) }
 	d.Values = sample(axes, eval)
@@ -190,7 +189,7 @@ func (d *Dense) CSV() []byte {
 	for _, a := range d.Axes {
 		b.WriteString(a.Name + ",")
 	}
-	b.WriteString("value\n")
+	b.WriteString(thrustmap.ColumnValue + "\n")
 	idx := make([]int, len(d.Axes))
 	for _, v := range d.Values {
 		for k, a := range d.Axes {
