@@ -82,6 +82,7 @@ Exit status: 0 ok, 1 checks failed, 2 bad input or usage.
 	root.SetOut(stdout)
 	root.SetErr(stderr)
 	root.SetHelpCommand(newHelpCmd(root))
+	root.AddCommand(newReferenceCmd())
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return fmt.Errorf("%s: %w (see %s --help)", c.CommandPath(), err, c.CommandPath())
 	})
