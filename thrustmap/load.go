@@ -600,7 +600,7 @@ func checkTable(c *collector, t *TableCSV, check func(float64) string) bool {
 	}
 	for i, v := range t.Values {
 		if msg := check(v); msg != "" {
-			c.addFileError(t.errAt(t.valueAt[i], CheckBounds, "value at %s: %s", t.point(i), msg))
+			c.addFileError(t.errAt(t.valueAt[i], CheckBounds, "%s: %s", t.point(i), msg))
 		}
 	}
 	return len(c.errs) == before

@@ -112,7 +112,8 @@ func (t *TableCSV) Grid(method grid.Method) (*grid.Grid, error) {
 }
 
 // point describes grid point i (an index into Values) by its coordinates:
-// "altitude_ft 2000, temperature_c 15".
+// "value at altitude_ft 2000, temperature_c 15", or "value" for a table
+// without axes.
 func (t *TableCSV) point(i int) string {
 	var parts []string
 	stride := len(t.Values)
@@ -125,9 +126,9 @@ func (t *TableCSV) point(i int) string {
 		parts = append(parts, AxisColumn(a)+" "+formatNumber(xs[i/stride%len(xs)]))
 	}
 	if len(parts) == 0 {
-		return "the single value"
+		return "value"
 	}
-	return strings.Join(parts, ", ")
+	return "value at " + strings.Join(parts, ", ")
 }
 
 // errAt is a fault at a place in the table's file.
@@ -239,6 +240,9 @@ func (p *tableParser) number(c csvCell, what string) (float64, bool) {
 		return 0, false
 	}
 	x, err := strconv.ParseFloat(c.text, 64)
+	if err == nil && strings.ContainsAny(c.text, "xX_") {
+		err = strconv.ErrSyntax // decimal numbers only: no hex floats or digit separators
+	}
 	switch {
 	case err != nil && errors.Is(err, strconv.ErrRange):
 		p.add(c.at, CheckNotFinite, "%s: %s is not a finite number", what, c.text)

@@ -92,6 +92,8 @@ func TestParseTableCSVErrors(t *testing.T) {
 		{"header only", "altitude_ft,value\n", 1, 1, CheckGridShape, "has a header but no rows"},
 		{"not a number", "altitude_ft/temperature_c,0,20\n0,90,92\n5000,91,9x\n", 3, 9, CheckWrongType, `value at altitude_ft 5000, temperature_c 20: "9x" is not a number`},
 		{"decimal comma", "altitude_ft/temperature_c,0,20\n0,90,\"92,5\"\n5000,91,93\n", 2, 6, CheckWrongType, "write the decimal mark as a point"},
+		{"hex", "altitude_ft,value\n0,0x5A\n1000,3\n", 2, 3, CheckWrongType, `value: "0x5A" is not a number`},
+		{"digit separator", "altitude_ft,value\n0,1\n1_000,3\n", 3, 1, CheckWrongType, `altitude_ft: "1_000" is not a number`},
 		{"NaN", "altitude_ft,value\n0,NaN\n1000,3\n", 2, 3, CheckNotFinite, "value: NaN is not a finite number"},
 		{"overflow", "altitude_ft,value\n0,1\n1e999,3\n", 3, 1, CheckNotFinite, "altitude_ft: 1e999 is not a finite number"},
 		{"infinite axis point", "altitude_ft/temperature_c,0,inf\n0,90,92\n5000,91,93\n", 1, 29, CheckNotFinite, "temperature_c point: inf is not a finite number"},
