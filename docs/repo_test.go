@@ -68,8 +68,26 @@ func sourceFiles(t *testing.T, fn func(rel string, text []byte)) {
 	}
 }
 
-// citation finds "docs/PAGE.md" and, after a comma, the section cited.
-var citation = regexp.MustCompile(`docs/([a-z0-9-]+\.md)(?:, ([^)\];\n]+))?`)
+// TestNoOutsideReferences: users read the code comments, messages and
+// docs; none may point to a document they do not have. The needles are
+// built from pieces so that this file does not trip over itself.
+func TestNoOutsideReferences(t *testing.T) {
+	needles := []string{"design br" + "ief", "design" + " §", "bri" + "ef §", "/" + "shared" + "/"}
+	sourceFiles(t, func(rel string, text []byte) {
+		for i, line := range strings.Split(string(text), "\n") {
+			low := strings.ToLower(line)
+			for _, n := range needles {
+				if strings.Contains(low, n) {
+					t.Errorf("%s:%d: mentions %q: cite a docs/ page and section or a published source instead", rel, i+1, n)
+				}
+			}
+		}
+	})
+}
+
+// citation finds "docs/PAGE.md" and, after a comma, the section cited (up
+// to a closing bracket, a semicolon, a colon or the end of the line).
+var citation = regexp.MustCompile(`docs/([a-z0-9-]+\.md)(?:, ([^)\];:\n]+))?`)
 
 // TestCitationsResolve: every "docs/PAGE.md, Section" in the repository
 // names a page that exists and begins a heading of it (a citation wrapped

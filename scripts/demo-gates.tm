@@ -13,7 +13,7 @@ check gate == "continuous"
 lever 1 3880
 check gate == "takeoff"
 
-# Forward the command never falls as the lever moves up (design §2).
+# Forward the command never falls as the lever moves up (docs/methods.md, Gate rules).
 tla 20
 let a = value
 tla 30

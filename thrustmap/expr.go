@@ -18,8 +18,8 @@ import (
 // every lever frame evaluate something huge.
 const MaxExprNodes = 200
 
-// exprEnv is the typed environment of gate expressions and the shell (design
-// brief §4a). Its functions are bound once, when a scratch is made, to the
+// exprEnv is the typed environment of gate expressions and the shell
+// (docs/expressions.md). Its functions are bound once, when a scratch is made, to the
 // scratch's own profile and conditions, so evaluating allocates only what the
 // expression VM boxes.
 type exprEnv struct {

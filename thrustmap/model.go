@@ -253,8 +253,8 @@ func (m *Model) CommandAtTLA(s *LeverState, lever int, tlaDeg float64, c Conditi
 	return out, err
 }
 
-// commandAt is the gate logic of design brief §2 at lever angle tla; it
-// fills *out, which must be zero.
+// commandAt is the gate logic (docs/methods.md, Gate rules) at lever angle
+// tla; it fills *out, which must be zero.
 func (m *Model) commandAt(s *LeverState, geom *leverGeom, raw, tla float64, cl Clamped, c Conditions, out *LeverCommand) error {
 	switch {
 	case s.model != m || s.geom != geom:
@@ -417,8 +417,9 @@ func (s *LeverState) own(m *Model, i int, tla float64) *gateEval {
 }
 
 // effective returns gate g (active) with its effective target: its own,
-// raised to the effective target of the active gate next nearer idle (design
-// brief §2, monotone command), worked out along the chain from idle.
+// raised to the effective target of the active gate next nearer idle
+// (docs/methods.md, Gate rules: monotone command), worked out along the chain
+// from idle.
 func (s *LeverState) effective(m *Model, g int, tla float64) *gateEval {
 	e := &s.gates[g]
 	if s.effKnown&(1<<g) != 0 {

@@ -24,7 +24,7 @@ func gatesModel(t testing.TB) *Model {
 	return m
 }
 
-// TestGateValuesHandWorked checks the gate rules of the design brief (§2)
+// TestGateValuesHandWorked checks the gate rules (docs/methods.md, Gate rules)
 // on testdata/gates.toml, whose ratings are constants, so each expected value
 // is the arithmetic in its comment.
 func TestGateValuesHandWorked(t *testing.T) {
@@ -215,7 +215,7 @@ func TestSlowSweep(t *testing.T) {
 // TestForwardCommandNonDecreasing walks TLA in 0.01° steps over the whole
 // lever at corners of the demo profiles' envelopes and fails on any
 // decrease forward of idle, or any decrease as the lever is pulled back into
-// reverse (design brief §2, monotone command).
+// reverse (docs/methods.md, Gate rules: monotone command).
 func TestForwardCommandNonDecreasing(t *testing.T) {
 	for _, name := range EmbeddedProfiles() {
 		m := demoModel(t, name)

@@ -221,7 +221,7 @@ const (
 
 // NotchPositions lists where the lever rests, in TLA order: the aft end
 // stop, the gates with notches between the stops, the forward end stop. A
-// notch gate at an end stop is that stop (design brief §2).
+// notch gate at an end stop is that stop (docs/methods.md, Sweep analysis).
 func (p *Profile) NotchPositions() []NotchPosition {
 	lv := p.lever
 	aft, fwd := NotchPosition{AftStop, lv.TLAMinDeg}, NotchPosition{ForwardStop, lv.TLAMaxDeg}

@@ -64,7 +64,8 @@ var flagNames = []string{"raised", "limited", "interlock", "fallback"}
 func (f Flags) Names() []string { return bitNames(uint64(f), flagNames) }
 
 // Reasons are the reason codes of the assumed-temperature method, in the
-// order its rules apply (design brief §2, after FAA AC 25-13).
+// order its rules apply (after FAA AC 25-13; docs/methods.md,
+// Assumed-temperature method).
 type Reasons uint8
 
 // The reason codes.
@@ -285,8 +286,8 @@ func (p *Profile) limit(v float64) (float64, Flags) {
 	return v, 0
 }
 
-// reduce applies the assumed-temperature method (design brief §2, after FAA
-// AC 25-13) rule by rule and returns the table value to use, before bleed
+// reduce applies the assumed-temperature method (after FAA AC 25-13;
+// docs/methods.md, Assumed-temperature method) rule by rule and returns the table value to use, before bleed
 // corrections; full is the rated value at the actual OAT.
 func (p *Profile) reduce(r *Rating, c Conditions, isa, full float64, res *Result) float64 {
 	a := p.assumed

@@ -90,7 +90,8 @@ func nonNil(s []string) []string {
 }
 
 // TestAssumedTemperatureRules checks each rule of the assumed-temperature
-// method (design brief §2, after FAA AC 25-13, 1988) in order, with values
+// method (after FAA AC 25-13, 1988; docs/methods.md, Assumed-temperature
+// method) in order, with values
 // worked by hand from testdata/handworked.toml (takeoff corner ISA+15, i.e.
 // 30 °C OAT at sea level; max_c 70; 25 % reduction limit).
 func TestAssumedTemperatureRules(t *testing.T) {

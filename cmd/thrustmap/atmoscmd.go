@@ -11,7 +11,7 @@ import (
 	"github.com/thrustmap/thrustmap/thrustmap/atmos"
 )
 
-// airDataJSON is the atmos command's JSON object (design brief §4a).
+// airDataJSON is the atmos command's JSON object (docs/units.md, JSON keys).
 type airDataJSON struct {
 	PressureAltitudeFt float64  `json:"pressure_altitude_ft"`
 	FieldElevationFt   *float64 `json:"field_elevation_ft,omitempty"`

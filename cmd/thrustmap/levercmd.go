@@ -12,7 +12,7 @@ import (
 	"github.com/thrustmap/thrustmap/thrustmap"
 )
 
-// leverJSON is one lever sample in the lever command's JSON (design brief §4a).
+// leverJSON is one lever sample in the lever command's JSON (docs/units.md, JSON keys).
 type leverJSON struct {
 	Lever     int       `json:"lever"`
 	Raw       float64   `json:"raw"`

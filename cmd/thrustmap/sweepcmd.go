@@ -20,7 +20,7 @@ import (
 	"github.com/thrustmap/thrustmap/thrustmap/sweep"
 )
 
-// sweepJSON is the sweep command's JSON (design brief §4a).
+// sweepJSON is the sweep command's JSON (docs/units.md, JSON keys).
 type sweepJSON struct {
 	Levers       []sweepLeverJSON `json:"levers"`
 	SkippedLines []input.Skipped  `json:"skipped_lines"`

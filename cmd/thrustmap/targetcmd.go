@@ -10,7 +10,7 @@ import (
 	"github.com/thrustmap/thrustmap/thrustmap"
 )
 
-// targetJSON is the target command's JSON object (design brief §4a).
+// targetJSON is the target command's JSON object (docs/units.md, JSON keys).
 type targetJSON struct {
 	Rating     string         `json:"rating"`
 	Parameter  string         `json:"parameter"`

@@ -415,7 +415,7 @@ func newWatchView(out, errOut io.Writer, m *thrustmap.Model, levers []int, asJSO
 }
 
 // watchJSON is one update in watch's JSON lines: the lever command's object
-// (design brief §4a) with the sample's time.
+// (docs/units.md, JSON keys) with the sample's time.
 type watchJSON struct {
 	TMs int64 `json:"t_ms"`
 	leverJSON

@@ -409,8 +409,8 @@ func ramFactor(mach float64) (float64, error) {
 	return f, nil
 }
 
-// Constants of the altimeter-setting formula (U.S. weather-service station
-// pressure definition, as adopted in the design brief).
+// Constants of the altimeter-setting formula (the U.S. National Weather
+// Service's station-pressure definition; docs/methods.md, Pressure altitude from QNH).
 const (
 	qnhScaleFt    = 145442.16
 	qnhExponent   = 0.190263

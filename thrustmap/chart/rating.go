@@ -255,8 +255,8 @@ func oatRange(p *thrustmap.Profile, r *thrustmap.Rating, alts []float64, mach fl
 }
 
 // oatOf converts a temperature on a rating's axis to OAT at an ISA
-// temperature and Mach: TAT = SAT·(1 + 0.2·M²) in kelvin (design brief §2,
-// recovery factor 1), ISA deviation = OAT − ISA.
+// temperature and Mach: TAT = SAT·(1 + 0.2·M²) in kelvin (recovery factor 1;
+// docs/methods.md, Total air temperature), ISA deviation = OAT − ISA.
 func oatOf(b thrustmap.TemperatureBasis, t, mach, isaC float64) float64 {
 	switch b {
 	case thrustmap.TAT:

@@ -10,7 +10,7 @@ import (
 	"github.com/thrustmap/thrustmap/thrustmap"
 )
 
-// CSV column names of a recording (design brief §3).
+// CSV column names of a recording (docs/recordings.md, CSV recordings).
 const (
 	ColTime  = "t_ms"
 	ColLever = "lever"

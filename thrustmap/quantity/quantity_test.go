@@ -11,7 +11,7 @@ import (
 // Exact definitions the expected values are derived from.
 const (
 	ftPerM      = 1 / 0.3048      // 1 ft = 0.3048 m exactly
-	hPaPerInHg  = 33.8638866667   // 1 inHg = 3386.38866667 Pa (design §2; 33.8639 hPa to six digits)
+	hPaPerInHg  = 33.8638866667   // 1 inHg = 3386.38866667 Pa: the conventional inch of mercury, 3386.389 Pa to seven digits (NIST SP 811, 2008, Appendix B; from memory)
 	kelvinAt0C  = 273.15          // 0 °C = 273.15 K exactly
 	fahrenheit0 = 32.0            // °F = °C·9/5 + 32
 	tol         = 1e-9            // parsing is exact up to one rounding of the conversion
@@ -66,7 +66,7 @@ func runErrors(t *testing.T, name, kind string, parse func(string) (float64, err
 
 func TestAltitude(t *testing.T) {
 	runCases(t, "Altitude", Altitude, []parseCase{
-		{"8000", 8000},            // bare number: feet (design §3)
+		{"8000", 8000},            // bare number: feet (docs/units.md, Bare numbers)
 		{"-2000ft", -2000},        // ft suffix
 		{"8000 ft", 8000},         // space before the unit
 		{"  8000FT ", 8000},       // any case, surrounding space
@@ -112,7 +112,7 @@ func TestAltitude(t *testing.T) {
 
 func TestTemperature(t *testing.T) {
 	runCases(t, "Temperature", Temperature, []parseCase{
-		{"15", 15},                        // bare number: °C (design §3)
+		{"15", 15},                        // bare number: °C (docs/units.md, Bare numbers)
 		{"15C", 15},                       // C suffix
 		{"-40c", -40},                     // any case
 		{"15 °C", 15},                     // degree sign and space
@@ -185,7 +185,7 @@ func TestAirTemperature(t *testing.T) {
 
 func TestQNH(t *testing.T) {
 	runCases(t, "QNH", QNH, []parseCase{
-		{"1013", 1013},                     // bare 850–1100: hPa (design §3)
+		{"1013", 1013},                     // bare 850–1100: hPa (docs/units.md, Bare numbers)
 		{"1013.25", 1013.25},               // standard setting
 		{"850", 850},                       // lower end of the bare hPa range
 		{"1100", 1100},                     // upper end
@@ -249,7 +249,7 @@ func TestMach(t *testing.T) {
 
 func TestSpeed(t *testing.T) {
 	runCases(t, "Speed", Speed, []parseCase{
-		{"250", 250}, // bare number: knots (design §3)
+		{"250", 250}, // bare number: knots (docs/units.md, Bare numbers)
 		{"250kt", 250},
 		{"140 KT", 140},
 		{"160kts", 160},

@@ -15,7 +15,7 @@ import (
 	"github.com/thrustmap/thrustmap/thrustmap/atmos"
 )
 
-// The expression environment is the gate expressions' (design brief §4a)
+// The expression environment is the gate expressions' (docs/expressions.md)
 // plus the session's: the last result (value, gate, tla, reverse), target()
 // with the assumed-temperature reduction, and the names defined by let.
 

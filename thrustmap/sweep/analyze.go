@@ -1,6 +1,6 @@
 // Package sweep finds a lever's notches in a recording of it being moved end
 // to end and rested in each notch, and writes the calibration that puts the
-// profile's gates on them (design brief §2, sweep auto-calibration).
+// profile's gates on them (docs/methods.md, Sweep analysis).
 //
 // The analysis streams: each lever keeps a fixed window of recent samples,
 // histograms for its noise estimate and the dwell segments it has found, so

@@ -71,7 +71,7 @@ func TestNotchAccuracy(t *testing.T) {
 }
 
 // TestBacklash: 10 counts of backlash is found within 2, and the notch is
-// the midpoint of the two directions (design brief §2).
+// the midpoint of the two directions (docs/methods.md, Sweep analysis).
 func TestBacklash(t *testing.T) {
 	res := calibrate(t, analyze(t, baseConfig(SynthLever{ID: 1, Notches: demoNotches, NoiseSigma: 3, Backlash: 10})), 1)
 	if math.Abs(res.BacklashCounts-10) > 2 {
