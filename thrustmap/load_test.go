@@ -4,6 +4,7 @@ import (
 	"errors"
 	"os"
 	"path/filepath"
+	"regexp"
 	"slices"
 	"strings"
 	"testing"
@@ -47,6 +48,38 @@ func TestEmbeddedProfilesLoad(t *testing.T) {
 	}
 	if r, _ := p.Rating("climb"); r.Basis() != TAT {
 		t.Error("demo climb should be TAT-based")
+	}
+}
+
+// TestEmbeddedProfileNamesPlain: the demos' aircraft and engines are
+// described in plain words, marked fictional, and carry nothing that reads
+// as a type designation or a brand: no letters run into a number ("X-120",
+// "Q90"), no bare number that is not a quantity with its unit ("120 kN"),
+// and not the program's two-letter shorthand.
+func TestEmbeddedProfileNamesPlain(t *testing.T) {
+	designation := regexp.MustCompile(`\b[A-Za-z]+-?\d+`)
+	number := regexp.MustCompile(`\d+(\s*\S+)?`)
+	shorthand := regexp.MustCompile(`\b(TM|tm)\b`)
+	for _, name := range EmbeddedProfiles() {
+		p, err := LoadProfile(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		text, _ := EmbeddedProfileText(name)
+		if m := designation.FindString(p.Name()); m != "" {
+			t.Errorf("%s: %q in the name reads as a type designation", name, m)
+		}
+		if m := shorthand.FindString(string(text)); m != "" {
+			t.Errorf("%s: %q is the program's shorthand", name, m)
+		}
+		if !strings.Contains(p.Name(), "(fictional)") {
+			t.Errorf("%s: name %q does not say it is fictional", name, p.Name())
+		}
+		for _, m := range number.FindAllStringSubmatch(p.Name(), -1) {
+			if strings.TrimSpace(m[1]) != "kN" {
+				t.Errorf("%s: name %q has a bare number %q (a model number?)", name, p.Name(), m[0])
+			}
+		}
 	}
 }
 
