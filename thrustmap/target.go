@@ -80,6 +80,7 @@ const (
 var reasonNames = []string{"ta_not_above_oat", "ta_below_corner", "ta_above_max", "reduction_limited", "reduction_not_checked"}
 
 // Names returns the reason codes in rule order; empty and non-nil for none.
+// Reduction.ReasonNames gives them in the order they acted.
 func (r Reasons) Names() []string { return bitNames(uint64(r), reasonNames) }
 
 func bitNames(bits uint64, names []string) []string {
@@ -104,7 +105,14 @@ type Reduction struct {
 	// temperature, percent; meaningful only when ThrustChecked.
 	ThrustReductionPct float64
 	ThrustChecked      bool // the rating has a thrust grid
+
+	order [maxReasonsActed]Reasons // the codes of Reasons in the order the rules acted
+	acted uint8
 }
+
+// maxReasonsActed bounds how many rules can act on one reduction: rule 2,
+// rule 1 again, and rule 3.
+const maxReasonsActed = 4
 
 // Result is a rating target at a set of conditions.
 type Result struct {
@@ -296,33 +304,30 @@ func (p *Profile) reduce(r *Rating, c Conditions, isa, full float64, res *Result
 	alt, oat, mach := c.AltitudeFt, c.OATC, c.Mach
 	ta := c.AssumedC
 
+	corner, hasCorner := r.CornerOAT(alt, isa)
+
 	// Rule 1: no reduction at or below the OAT, nor at or below the corner.
-	if ta <= oat {
-		red.Reasons |= TANotAboveOAT
+	if red.fullRating(ta, oat, corner, hasCorner) {
 		return full
 	}
-	if corner, ok := r.CornerOAT(alt, isa); ok && ta <= corner {
-		red.Reasons |= TABelowCorner
-		return full
-	}
-	// Rule 2: no higher than the maximum assumed temperature.
+	// Rule 2: no higher than the maximum assumed temperature; rule 1 then
+	// applies again at the temperature cut to.
 	if ta > a.MaxC {
 		ta = a.MaxC
-		red.Reasons |= TAAboveMax
-		if ta <= oat {
-			red.Reasons |= TANotAboveOAT
+		red.add(TAAboveMax)
+		if red.fullRating(ta, oat, corner, hasCorner) {
 			return full
 		}
 	}
 	// Rule 3: the thrust reduction limit.
 	if r.thrust == nil {
-		red.Reasons |= ReductionNotChecked
+		red.add(ReductionNotChecked)
 	} else {
 		thrustFull := r.thrustAt(alt, oat, mach, isa)
 		floor := (1 - a.MaxReductionPct/100) * thrustFull
 		if r.thrustAt(alt, ta, mach, isa) < floor {
 			ta = r.largestMeeting(floor, alt, oat, ta, mach, isa)
-			red.Reasons |= ReductionLimited
+			red.add(ReductionLimited)
 		}
 		if thrustFull > 0 {
 			red.ThrustReductionPct = 100 * (1 - r.thrustAt(alt, ta, mach, isa)/thrustFull)
@@ -339,6 +344,50 @@ func (p *Profile) reduce(r *Rating, c Conditions, isa, full float64, res *Result
 		v *= math.Sqrt((oat + atmos.KelvinOffset) / (ta + atmos.KelvinOffset))
 	}
 	return min(v, full)
+}
+
+// TemperatureTolC is the tolerance of the assumed-temperature method's
+// comparisons of an assumed temperature with the OAT and the corner, °C: a
+// micro-degree, so that an assumed temperature typed at the corner (ISA+15
+// at 2000 ft is 26.0376 °C, which computes to 26.037599999999998) counts as
+// at the corner.
+const TemperatureTolC = 1e-6
+
+// notAbove reports whether temperature t is at or below limit, within
+// TemperatureTolC: the one comparison rule 1 makes.
+func notAbove(t, limit float64) bool { return t <= limit+TemperatureTolC }
+
+// fullRating applies rule 1 at assumed temperature ta: at or below the OAT,
+// or at or below the corner (below it rated thrust is flat), there is no
+// reduction; it records the reason and reports whether the rule acted.
+func (red *Reduction) fullRating(ta, oat, corner float64, hasCorner bool) bool {
+	switch {
+	case notAbove(ta, oat):
+		red.add(TANotAboveOAT)
+	case hasCorner && notAbove(ta, corner):
+		red.add(TABelowCorner)
+	default:
+		return false
+	}
+	return true
+}
+
+// add records that the rule with reason code c acted, after those before it.
+func (red *Reduction) add(c Reasons) {
+	red.Reasons |= c
+	red.order[red.acted] = c
+	red.acted++
+}
+
+// ReasonNames returns the reason codes of the rules that acted, in the
+// order they acted (a cut to max_c comes before the rule-1 test it leads
+// to); empty and non-nil for none.
+func (red *Reduction) ReasonNames() []string {
+	out := []string{}
+	for _, c := range red.order[:red.acted] {
+		out = append(out, c.Names()...)
+	}
+	return out
 }
 
 // largestMeeting returns the largest temperature in [lo, hi] at which the

@@ -1,9 +1,11 @@
 package thrustmap
 
 import (
+	"bytes"
 	"errors"
 	"math"
 	"math/rand/v2"
+	"os"
 	"slices"
 	"strconv"
 	"sync"
@@ -146,6 +148,30 @@ func TestAssumedTemperatureRules(t *testing.T) {
 			want: 96 * sqrtRatio(0, 40), effective: 40, applied: true, thrustRedPc: 100 * (1 - 80.0/90), full: 92,
 		},
 		{
+			// Rule 2 then rule 1, reasons in the order they acted: Ta 80 is
+			// cut to max_c 70, which is not above OAT 70: full rating, 91.
+			name: "cut to max, not above oat", rating: "takeoff", oat: 70, ta: 80,
+			want: 91, effective: 70, reasons: []string{"ta_above_max", "ta_not_above_oat"}, thrustRedPc: 0, full: 91,
+		},
+		{
+			// Exactly at the corner, as typed: ISA at 2000 ft is
+			// 15 − 6.5 K/km × 0.6096 km = 11.0376 °C (ICAO Doc 7488/3 lapse
+			// rate), so the corner is 26.0376 °C. Full at OAT 10: 91.6667 on
+			// the sea-level row, 93.6667 at 10 000 ft; a fifth of the way up,
+			// 91.6667 + 0.2 × 2 = 92.0667.
+			name: "at the corner", rating: "takeoff", alt: 2000, oat: 10, ta: 26.0376,
+			want: 92 + 1.0/15, effective: 10, reasons: []string{"ta_below_corner"}, thrustRedPc: 0, full: 92 + 1.0/15,
+		},
+		{
+			// A tenth of a degree above the corner is a reduction (the
+			// tolerance is a micro-degree). Thrust is flat to 30 °C on both
+			// rows (98 kN here), so 0 % reduction; the table at 26.1376 is
+			// 90 + 5·26.1376/30 + 0.4 = 94.7563, × √(283.15/299.2876) =
+			// 92.166, above full: held at full.
+			name: "just above the corner", rating: "takeoff", alt: 2000, oat: 10, ta: 26.1376,
+			want: 92 + 1.0/15, effective: 26.1376, applied: true, thrustRedPc: 0, full: 92 + 1.0/15,
+		},
+		{
 			// No thrust grid: the limit cannot be checked. Ta 50 on "derate":
 			// 93 × √(283.15/323.15).
 			name: "not checked", rating: "derate", oat: 10, ta: 50,
@@ -177,7 +203,7 @@ func TestAssumedTemperatureRules(t *testing.T) {
 			if r.Applied != tc.applied {
 				t.Errorf("applied = %v, want %v", r.Applied, tc.applied)
 			}
-			if got := r.Reasons.Names(); !slices.Equal(got, nonNil(tc.reasons)) {
+			if got := r.ReasonNames(); !slices.Equal(got, nonNil(tc.reasons)) {
 				t.Errorf("reasons = %v, want %v", got, tc.reasons)
 			}
 			if math.IsNaN(tc.thrustRedPc) {
@@ -194,6 +220,33 @@ func TestAssumedTemperatureRules(t *testing.T) {
 				t.Errorf("reduced %g above full %g", res.Value, r.ValueFull)
 			}
 		})
+	}
+}
+
+// TestAssumedMaxBelowCorner: when max_c lies below the corner, the cut to
+// max_c leads back to rule 1 — at or below the corner rated thrust is flat,
+// so the full rating, with the reasons in the order the rules acted. The
+// hand-worked profile with max_c 25 against its 30 °C sea-level corner
+// (ISA+15): OAT 10, Ta 40 → 25 → full, 90 + 5·10/30 = 91.6667.
+func TestAssumedMaxBelowCorner(t *testing.T) {
+	text, err := os.ReadFile("testdata/handworked.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := ParseProfile("max-below-corner.toml", bytes.Replace(text, []byte("max_c = 70"), []byte("max_c = 25"), 1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := p.Target("takeoff", Conditions{OATC: 10, AssumedSet: true, AssumedC: 40})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := res.Reduction
+	if r.Applied || math.Abs(res.Value-(90+5.0/3)) > 1e-9 || r.EffectiveC != 10 {
+		t.Errorf("value %.10g applied %v effective %g, want the full 91.6667 at OAT 10", res.Value, r.Applied, r.EffectiveC)
+	}
+	if got, want := r.ReasonNames(), []string{"ta_above_max", "ta_below_corner"}; !slices.Equal(got, want) {
+		t.Errorf("reasons %v, want %v", got, want)
 	}
 }
 

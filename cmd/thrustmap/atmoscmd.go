@@ -27,9 +27,12 @@ type airDataJSON struct {
 	Theta              float64  `json:"theta"`
 	Delta              float64  `json:"delta"`
 	Sigma              float64  `json:"sigma"`
-	DensityAltitudeFt  *float64 `json:"density_altitude_ft,omitempty"`
-	Mach               *float64 `json:"mach,omitempty"`
-	TATC               *float64 `json:"tat_c,omitempty"`
+	// DensityAltitudeFt is present with --oat: a *float64, nil (JSON null)
+	// when the density altitude lies outside the standard atmosphere.
+	DensityAltitudeFt any      `json:"density_altitude_ft,omitempty"`
+	Mach              *float64 `json:"mach,omitempty"`
+	TATC              *float64 `json:"tat_c,omitempty"`
+	Notes             []string `json:"notes,omitempty"` // what could not be computed, and why
 }
 
 // airData computes the air data at a: the standard atmosphere at the
@@ -63,11 +66,15 @@ func airData(a air) (airDataJSON, error) {
 		d.FieldElevationFt, d.QNHHPa = &a.elevFt, &a.qnhHPa
 	}
 	if a.hasOAT {
-		da, err := atmos.DensityAltitude(a.altFt, a.oatC)
-		if err != nil {
-			return d, fmt.Errorf("density altitude: %w", err)
+		// The air's density may match no altitude of the standard atmosphere
+		// (very hot or cold air near its ends): everything else still holds.
+		if da, err := atmos.DensityAltitude(a.altFt, a.oatC); err != nil {
+			d.DensityAltitudeFt = (*float64)(nil)
+			d.Notes = append(d.Notes, fmt.Sprintf("density altitude not computed: the air's density, %.5g kg/m³, is that of no altitude of the standard atmosphere (%.0f to %.0f ft)",
+				rho, atmos.MinAltitudeFt, atmos.MaxAltitudeFt))
+		} else {
+			d.DensityAltitudeFt = &da
 		}
-		d.DensityAltitudeFt = &da
 	}
 	if a.hasMach {
 		tat, err := atmos.TAT(t, a.mach)
@@ -125,11 +132,14 @@ func printAirData(w io.Writer, d airDataJSON) {
 	fmt.Fprintf(tw, "density\t%.5f kg/m³\n", d.DensityKgM3)
 	fmt.Fprintf(tw, "speed of sound\t%.1f kt\n", d.SpeedOfSoundKt)
 	fmt.Fprintf(tw, "θ δ σ\t%.5f %.5f %.5f\n", d.Theta, d.Delta, d.Sigma)
-	if d.DensityAltitudeFt != nil {
-		fmt.Fprintf(tw, "density altitude\t%.0f ft\n", *d.DensityAltitudeFt)
+	if da, ok := d.DensityAltitudeFt.(*float64); ok && da != nil {
+		fmt.Fprintf(tw, "density altitude\t%.0f ft\n", *da)
 	}
 	if d.TATC != nil {
 		fmt.Fprintf(tw, "total air temperature\t%.2f °C\tat Mach %.3f\n", *d.TATC, *d.Mach)
+	}
+	for _, n := range d.Notes {
+		fmt.Fprintf(tw, "note\t%s\n", n)
 	}
 	tw.Flush()
 }

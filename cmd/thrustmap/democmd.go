@@ -237,7 +237,7 @@ func runDemo(w io.Writer, dir string) (*demoResults, error) {
 		}
 		res.Reduced = append(res.Reduced, newTargetJSON(p, r, c))
 		red := r.Reduction
-		fmt.Fprintf(tw, "  \t%.0f °C\t%.1f °C\t%s\t%s\t%s\t\n", ta, red.EffectiveC, formatValue(r.Value, r.Unit()), formatReduction(red.ThrustReductionPct), listOr(red.Reasons.Names(), "-"))
+		fmt.Fprintf(tw, "  \t%.0f °C\t%.1f °C\t%s\t%s\t%s\t\n", ta, red.EffectiveC, formatValue(r.Value, r.Unit()), formatReduction(red.ThrustReductionPct), listOr(red.ReasonNames(), "-"))
 	}
 	tw.Flush()
 	fmt.Fprintf(w, "  (max assumed %.0f °C; rated thrust may fall at most %.0f %%, the limit of FAA AC 25-13)\n", a.MaxC, a.MaxReductionPct)

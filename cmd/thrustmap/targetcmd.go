@@ -48,7 +48,7 @@ func newTargetJSON(p *thrustmap.Profile, res thrustmap.Result, c thrustmap.Condi
 	}
 	if r := res.Reduction; r.Evaluated {
 		out.Reduction = &reductionJSON{AssumedTempC: r.AssumedC, EffectiveTempC: r.EffectiveC, Applied: r.Applied,
-			ValueFull: r.ValueFull, Reasons: r.Reasons.Names()}
+			ValueFull: r.ValueFull, Reasons: r.ReasonNames()}
 		if r.ThrustChecked {
 			pct := r.ThrustReductionPct
 			out.Reduction.ThrustReductionPct = &pct

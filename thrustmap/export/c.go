@@ -1037,7 +1037,7 @@ func (g *cGen) ratingCode() {
 			g.code("    case 2:\n        *out = tm__interp1(r->corner_alts, r->corner_oats, r->corner_n, alt);\n        return 1;\n")
 		}
 		g.code(cCornerTail)
-		g.code(cReduceCode, cNum(a.MaxC), cNum(a.MaxC), cNum(a.MaxReductionPct))
+		g.code(cReduceCode, cNum(thrustmap.TemperatureTolC), cNum(a.MaxC), cNum(a.MaxC), cNum(a.MaxReductionPct))
 		if g.p.Parameter() == thrustmap.N1 && a.Corrected {
 			g.code("    /* Same corrected speed N1/sqrt(theta) as at Ta. */\n    v *= sqrt((oat + TM__KELVIN) / (ta + TM__KELVIN));\n")
 		}
@@ -1720,33 +1720,45 @@ static double tm__min_builtin(double x, double y)
     return x < y ? x : y;
 }
 
+/* The tolerance of rule 1's temperature comparisons, degrees C. */
+#define TM__TEMP_TOL %s
+
+/* Rule 1 at assumed temperature ta: no reduction at or below the OAT, nor at
+   or below the corner; records the reason and returns 1 when it acts. */
+static int tm__full_rating(double ta, double oat, double corner, int has_corner, tm_result *res)
+{
+    if (ta <= oat + TM__TEMP_TOL) {
+        res->reasons |= TM_REASON_TA_NOT_ABOVE_OAT;
+        return 1;
+    }
+    if (has_corner && ta <= corner + TM__TEMP_TOL) {
+        res->reasons |= TM_REASON_TA_BELOW_CORNER;
+        return 1;
+    }
+    return 0;
+}
+
 /* The assumed-temperature method (FAA AC 25-13), rule by rule: the table
    value to use before bleed corrections; full is the value at the OAT. */
 static double tm__reduce(const tm__rating *r, const tm_conditions *c, double isa, double full, tm_result *res)
 {
-    double alt = c->alt_ft, oat = c->oat_c, mach = c->mach, ta = c->assumed_c, corner, v;
+    double alt = c->alt_ft, oat = c->oat_c, mach = c->mach, ta = c->assumed_c, corner = 0, v;
     uint32_t cl = 0;
+    int has_corner = tm__corner(r, alt, isa, &corner);
     res->evaluated = 1;
     res->assumed_c = c->assumed_c;
     res->effective_c = oat;
     res->thrust_checked = r->thrust >= 0;
     /* Rule 1: no reduction at or below the OAT, nor at or below the corner. */
-    if (ta <= oat) {
-        res->reasons |= TM_REASON_TA_NOT_ABOVE_OAT;
+    if (tm__full_rating(ta, oat, corner, has_corner, res))
         return full;
-    }
-    if (tm__corner(r, alt, isa, &corner) && ta <= corner) {
-        res->reasons |= TM_REASON_TA_BELOW_CORNER;
-        return full;
-    }
-    /* Rule 2: no higher than the maximum assumed temperature. */
+    /* Rule 2: no higher than the maximum assumed temperature; rule 1 then
+       applies again at the temperature cut to. */
     if (ta > %s) {
         ta = %s;
         res->reasons |= TM_REASON_TA_ABOVE_MAX;
-        if (ta <= oat) {
-            res->reasons |= TM_REASON_TA_NOT_ABOVE_OAT;
+        if (tm__full_rating(ta, oat, corner, has_corner, res))
             return full;
-        }
     }
     /* Rule 3: the thrust reduction limit. */
     if (r->thrust < 0) {

@@ -312,7 +312,7 @@ func cmdTarget(c *call) error {
 	in.printf("%s %s %s", r.Name(), res.Parameter, fmtValue(res.Value, res.Unit()))
 	if red := res.Reduction; red.Evaluated {
 		in.printf("  (assumed %.1f °C, effective %.1f °C, full %s", red.AssumedC, red.EffectiveC, fmtValue(red.ValueFull, res.Unit()))
-		if names := red.Reasons.Names(); len(names) > 0 {
+		if names := red.ReasonNames(); len(names) > 0 {
 			in.printf(", %s", strings.Join(names, ", "))
 		}
 		in.printf(")")

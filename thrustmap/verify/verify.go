@@ -18,31 +18,32 @@ import (
 // The check codes this package adds to the load checks of thrustmap
 // (thrustmap.CheckSyntax and the rest). They are stable: scripts rely on them.
 const (
-	CheckRatingOrder       = "rating_order"           // a rating above one it should not exceed
-	CheckFallsBelowCorner  = "falls_below_corner"     // takeoff falls with temperature below the corner
-	CheckRisesPastCorner   = "rises_past_corner"      // takeoff rises with temperature past the corner
-	CheckCornerColumn      = "corner_between_columns" // no temperature column at the corner
-	CheckOutlier           = "outlier"                // a cell out of line with its neighbours
-	CheckEnvelope          = "envelope_not_covered"   // the declared envelope outside a grid
-	CheckCommandFalls      = "command_falls"          // the forward command falls as TLA rises
-	CheckGateRaised        = "gate_raised"            // a gate's target below its lower neighbour's
-	CheckGateAlwaysRaised  = "gate_always_raised"     // ... at every sampled condition
-	CheckExpressionFails   = "expression_fails"       // a gate expression errs or is not finite
-	CheckExpressionBounds  = "expression_bounds"      // a gate expression outside physical bounds
-	CheckAssumedMax        = "assumed_max_outside"    // max assumed temperature beyond the table
-	CheckAssumedUnused     = "assumed_unused"         // [assumed_temperature] but no gate commands the reduction
-	CheckReductionLimit    = "reduction_limit"        // max_reduction_pct above the AC 25-13 25 %
-	CheckReductionBinds    = "reduction_limit_binds"  // the thrust limit binds inside the assumed range
-	CheckEPRBelowOne       = "epr_below_one"          // a forward EPR target below 1.0
-	CheckNotchCount        = "notch_count"            // calibration points vs notch gates
-	CheckCaptureNoise      = "capture_below_noise"    // capture under 4 σ of the lever's noise
-	CheckNotchPointMissing = "notch_point_missing"    // no calibration point at a notch gate
-	CheckLeverSplit        = "lever_split"            // levers put one gate at different angles
-	CheckLeverSpan         = "lever_span"             // a calibration that misses or overruns the end stops
-	CheckCalibrationLoad   = "calibration_invalid"    // the calibration does not fit the profile
-	CheckDegreesPerCount   = "degrees_per_count"      // (note) resolution at each gate
-	CheckFile              = "file"                   // the file cannot be read
-	checkInternal          = "internal"               // a bug in a check
+	CheckRatingOrder       = "rating_order"             // a rating above one it should not exceed
+	CheckFallsBelowCorner  = "falls_below_corner"       // takeoff falls with temperature below the corner
+	CheckRisesPastCorner   = "rises_past_corner"        // takeoff rises with temperature past the corner
+	CheckCornerColumn      = "corner_between_columns"   // no temperature column at the corner
+	CheckOutlier           = "outlier"                  // a cell out of line with its neighbours
+	CheckEnvelope          = "envelope_not_covered"     // the declared envelope outside a grid
+	CheckCommandFalls      = "command_falls"            // the forward command falls as TLA rises
+	CheckGateRaised        = "gate_raised"              // a gate's target below its lower neighbour's
+	CheckGateAlwaysRaised  = "gate_always_raised"       // ... at every sampled condition
+	CheckExpressionFails   = "expression_fails"         // a gate expression errs or is not finite
+	CheckExpressionBounds  = "expression_bounds"        // a gate expression outside physical bounds
+	CheckAssumedMax        = "assumed_max_outside"      // max assumed temperature beyond the table
+	CheckAssumedUnused     = "assumed_unused"           // [assumed_temperature] but no gate commands the reduction
+	CheckAssumedMaxCorner  = "assumed_max_below_corner" // max_c at or below a corner: no reduction is possible there
+	CheckReductionLimit    = "reduction_limit"          // max_reduction_pct above the AC 25-13 25 %
+	CheckReductionBinds    = "reduction_limit_binds"    // the thrust limit binds inside the assumed range
+	CheckEPRBelowOne       = "epr_below_one"            // a forward EPR target below 1.0
+	CheckNotchCount        = "notch_count"              // calibration points vs notch gates
+	CheckCaptureNoise      = "capture_below_noise"      // capture under 4 σ of the lever's noise
+	CheckNotchPointMissing = "notch_point_missing"      // no calibration point at a notch gate
+	CheckLeverSplit        = "lever_split"              // levers put one gate at different angles
+	CheckLeverSpan         = "lever_span"               // a calibration that misses or overruns the end stops
+	CheckCalibrationLoad   = "calibration_invalid"      // the calibration does not fit the profile
+	CheckDegreesPerCount   = "degrees_per_count"        // (note) resolution at each gate
+	CheckFile              = "file"                     // the file cannot be read
+	checkInternal          = "internal"                 // a bug in a check
 )
 
 // Finding is one fault, with its stable check code and where it is.
@@ -425,6 +426,7 @@ func checkAssumed(r *Report, p *thrustmap.Profile, s sampler) {
 	}
 	for _, name := range a.Ratings {
 		rt, _ := p.Rating(name)
+		checkMaxAboveCorner(r, a, rt, s)
 		t := rt.Table()
 		lo, hi := t.Range(grid.Temperature)
 		for _, alt := range s.alts {
@@ -460,6 +462,25 @@ func checkAssumed(r *Report, p *thrustmap.Profile, s sampler) {
 		if len(binds) > 0 {
 			r.warnf(CheckReductionBinds, name, "the %g %% thrust limit binds below max_c %g °C at %s; the runtime limits the assumed temperature there",
 				a.MaxReductionPct, a.MaxC, strings.Join(binds, "; "))
+		}
+	}
+}
+
+// checkMaxAboveCorner: max_c above the rating's corner at every sampled
+// altitude. At or below the corner rated thrust is flat, so the method gives
+// the full rating there whatever the assumed temperature (docs/methods.md,
+// Assumed-temperature method, rules 1 and 2).
+func checkMaxAboveCorner(r *Report, a *thrustmap.AssumedTemperature, rt *thrustmap.Rating, s sampler) {
+	for _, alt := range s.alts {
+		isa, err := atmos.ISATemperatureC(alt)
+		if err != nil {
+			continue
+		}
+		if corner, ok := rt.CornerOAT(alt, isa); ok && a.MaxC <= corner+thrustmap.TemperatureTolC {
+			r.errorf(CheckAssumedMaxCorner, fmt.Sprintf("%s, altitude %.0f ft", rt.Name(), alt),
+				"max assumed temperature %g °C is at or below the corner (%.1f °C OAT, ISA%+.3g) at %s: no assumed temperature can reduce thrust there; raise max_c above the corner",
+				a.MaxC, corner, corner-isa, altitudeName(alt))
+			return
 		}
 	}
 }
