@@ -142,7 +142,7 @@ func writeExpected(t *testing.T, path string) {
 		}
 		fmt.Fprintf(w, "sweep %d %d\n%s\n", l.ID(), len(rows), strings.Join(rows, "\n"))
 	}
-	for _, want := range []string{"", "reverse-full", "idle", "climb", "continuous", "reduced-takeoff", "takeoff", "reverse", "raised", "interlock", "altitude", "raw"} {
+	for _, want := range []string{"", "full-reverse", "idle", "climb", "continuous", "reduced-takeoff", "takeoff", "reverse", "raised", "interlock", "altitude", "raw"} {
 		if !seen[want] {
 			t.Errorf("no sample of the sweeps reaches %q: choose conditions that do", want)
 		}

@@ -170,7 +170,7 @@ func TestCountMismatch(t *testing.T) {
 	sc, _ := a.Scan(1)
 	_, err := Calibrate(demoProfile(t), sc, CalOptions{})
 	if !errors.Is(err, ErrNotchCount) || !strings.Contains(err.Error(), "rested at 5 places") ||
-		!strings.Contains(err.Error(), "expects 6 (reverse-full, idle, climb, continuous, reduced-takeoff, takeoff)") {
+		!strings.Contains(err.Error(), "expects 6 (full-reverse, idle, climb, continuous, reduced-takeoff, takeoff)") {
 		t.Errorf("err = %v", err)
 	}
 }
