@@ -17,3 +17,23 @@ check rating('takeoff') within 0.5 of 100
 set oat 40
 check rating('takeoff') < 100
 check rating('takeoff') >= rating('continuous')
+
+# The EPR demo's lever: full reverse at its own aft stop (−25°), and one
+# forward gate that is takeoff on the ground, reduced inside the gate when an
+# assumed temperature is set, and go-around in the air.
+profile demo-epr
+calibration demo-epr
+set alt 0 oat 15 mach 0 ground on
+tla -25
+check gate == "full-reverse" && reverse
+check value within 1e-9 of 1.35
+tla 60
+check gate == "full-forward"
+check value within 1e-9 of rating('takeoff')
+set assumed 45
+tla 60
+check value within 1e-9 of max(assumed('takeoff'), rating('continuous'))
+check value < rating('takeoff')
+set ground off
+tla 60
+check value within 1e-9 of rating('go-around')

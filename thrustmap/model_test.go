@@ -278,6 +278,41 @@ func TestReducedTakeoffGate(t *testing.T) {
 	}
 }
 
+// TestReducedInsideTakeoffGate: the EPR demo applies the reduced takeoff
+// inside its forward-stop gate (docs/profile.md, Reduced takeoff): takeoff
+// on the ground, the assumed-temperature value with an assumed temperature
+// set, go-around in the air. Values worked by hand from the demo-epr tables
+// at sea level, OAT 15 °C (ISA): takeoff row 0 ft is flat at 1.520 up to its
+// corner, go-around at 1.510; at an assumed 45 °C the takeoff table gives
+// 1.443 (its 45 °C column) with rated thrust 82.8 kN of 98.0 kN (15.5 %, inside
+// the 25 % limit), above maximum continuous at ISA (1.440).
+func TestReducedInsideTakeoffGate(t *testing.T) {
+	m := demoModel(t, "demo-epr")
+	ground := Conditions{AltitudeFt: 0, OATC: 15, OnGround: true}
+	reduced := ground
+	reduced.AssumedSet, reduced.AssumedC = true, 45
+	air := reduced
+	air.OnGround = false
+	for _, tc := range []struct {
+		name string
+		c    Conditions
+		want float64
+	}{
+		{"takeoff on the ground", ground, 1.520},
+		{"reduced inside the gate", reduced, 1.443},
+		{"go-around in the air", air, 1.510},
+	} {
+		var s LeverState
+		cmd, err := m.CommandAtTLA(&s, 1, 60, tc.c)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if m.GateName(cmd.Gate) != "full-forward" || math.Abs(cmd.Value-tc.want) > 1e-9 || cmd.Flags != 0 {
+			t.Errorf("%s: gate %q value %.6g flags %v, want full-forward %.6g", tc.name, m.GateName(cmd.Gate), cmd.Value, cmd.Flags.Names(), tc.want)
+		}
+	}
+}
+
 func continuousAt(t *testing.T, p *Profile, c Conditions) float64 {
 	c.AssumedSet = false
 	r, err := p.Target("continuous", c)
