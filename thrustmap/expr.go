@@ -205,7 +205,7 @@ type compiledExpr struct {
 // `when` (true/false) rather than a target (a number). Names given to rating,
 // rating_at, assumed and bleed must be quoted constants the profile declares.
 func compileExpr(p *Profile, src string, wantBool bool) (*compiledExpr, error) {
-	opts := []expr.Option{expr.Env(exprEnv{}), expr.MaxNodes(MaxExprNodes)}
+	opts := []expr.Option{expr.Env(exprEnv{}), expr.MaxNodes(MaxExprNodes), expr.Patch(floatLiterals{})}
 	if wantBool {
 		opts = append(opts, expr.AsBool())
 	} else {
@@ -229,6 +229,21 @@ func compileExpr(p *Profile, src string, wantBool bool) (*compiledExpr, error) {
 		ce.num, _ = fastNumber(p, node)
 	}
 	return ce, nil
+}
+
+// floatLiterals makes every integer literal of a gate expression a float
+// literal: every number of the environment is a float64, and expr-lang's VM
+// refuses an int where a function takes a float64 when the type checker
+// cannot see it statically (clamp(x, on_ground ? oat : -10, alt) fails at
+// run time with "reflect: Call using int as type float64"), while the
+// allocation-free evaluator takes it. Found by FuzzFastExprMatchesVM.
+type floatLiterals struct{}
+
+// Visit replaces an integer literal by the same number as a float.
+func (floatLiterals) Visit(node *ast.Node) {
+	if n, ok := (*node).(*ast.IntegerNode); ok {
+		ast.Patch(node, &ast.FloatNode{Value: float64(n.Value)})
+	}
 }
 
 // exprError keeps the first line of a compile error and its column, with
