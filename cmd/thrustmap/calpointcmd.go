@@ -2,8 +2,11 @@ package main
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
+	"io/fs"
 	"math"
+	"os"
 	"slices"
 	"strconv"
 	"strings"
@@ -17,24 +20,30 @@ import (
 )
 
 func newAddPointCmd() *cobra.Command {
-	var cal string
+	var cal, from string
 	var lever int
 	var raw, tla float64
 	cmd := &cobra.Command{
-		Use:   "add-point -c CAL --lever N --raw R --tla DEG",
+		Use:   "add-point -c CAL [--from CAL] --lever N --raw R --tla DEG",
 		Short: "Add a calibration point at a known lever angle (pot taper a sweep cannot see)",
 		Long: `add-point adds the point (raw, TLA) to a lever's calibration, replacing a point
 at the same angle, and writes the file atomically, keeping CAL.bak. Use it for
 angles measured by hand between notches, where a sweep cannot see the taper of
 the pot. The points must stay strictly monotone.
 
+CAL is a calibration file that exists (sweep writes one). With --from, the
+points start from another calibration — a file, or a built-in one such as
+demo, which cannot be edited in place — and the result is written to CAL.
+
 ` + safetyNote,
+		Example: `  thrustmap add-point -c my-quadrant.toml --lever 1 --raw 1900 --tla 13
+  thrustmap add-point --from demo -c my-quadrant.toml --lever 1 --raw 1900 --tla 13`,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
 			if cal == "" || !cmd.Flags().Changed("raw") || !cmd.Flags().Changed("tla") {
 				return fmt.Errorf("-c CAL, --raw and --tla are required")
 			}
-			c, err := existingCalibration(cal)
+			c, err := calibrationToEdit(cal, from)
 			if err != nil {
 				return err
 			}
@@ -46,18 +55,44 @@ the pot. The points must stay strictly monotone.
 			if err != nil {
 				return fmt.Errorf("the point (%g, %g°) does not fit: %w", raw, tla, err)
 			}
+			_, statErr := os.Stat(cal)
 			if err := atomicfile.WriteFile(cal, c.With(nl).Encode(), 0o644, true); err != nil {
 				return err
 			}
-			fmt.Fprintf(cmd.OutOrStdout(), "lever %d: %d points; wrote %s (previous file kept as %s.bak)\n", lever, len(nl.Spec().Points), cal, cal)
+			kept := ""
+			if statErr == nil {
+				kept = fmt.Sprintf(" (previous file kept as %s%s)", cal, atomicfile.BackupSuffix)
+			}
+			fmt.Fprintf(cmd.OutOrStdout(), "lever %d: %d points; wrote %s%s\n", lever, len(nl.Spec().Points), cal, kept)
 			return nil
 		},
 	}
-	cmd.Flags().StringVarP(&cal, "cal", "c", "", "calibration file to change")
+	cmd.Flags().StringVarP(&cal, "cal", "c", "", "calibration file to change (or to write, with --from)")
+	cmd.Flags().StringVar(&from, "from", "", "start from this calibration (a file or a built-in name such as demo)")
 	cmd.Flags().IntVar(&lever, "lever", 1, "lever id")
 	cmd.Flags().Float64Var(&raw, "raw", 0, "raw count read at the angle")
 	cmd.Flags().Float64Var(&tla, "tla", 0, "the lever angle, degrees")
 	return cmd
+}
+
+// calibrationToEdit returns the calibration add-point changes: the file
+// cal, which must exist, or the calibration from (a file or a built-in
+// name), whose points are then written to cal.
+func calibrationToEdit(cal, from string) (*thrustmap.Calibration, error) {
+	if from != "" {
+		return thrustmap.LoadCalibration(from)
+	}
+	if _, builtin := thrustmap.EmbeddedCalibrationText(cal); builtin && !strings.ContainsRune(cal, '/') && !strings.HasSuffix(cal, ".toml") {
+		return nil, fmt.Errorf("-c %s: a built-in calibration cannot be edited; start a file from it: thrustmap add-point --from %s -c my-levers.toml ...", cal, cal)
+	}
+	b, err := os.ReadFile(cal)
+	if errors.Is(err, fs.ErrNotExist) {
+		return nil, fmt.Errorf("-c %s: no such file (add-point changes a calibration that exists: write one with sweep, or start from another with --from)", cal)
+	}
+	if err != nil {
+		return nil, err
+	}
+	return thrustmap.ParseCalibration(cal, b)
 }
 
 func newSynthSweepCmd() *cobra.Command {
