@@ -398,6 +398,9 @@ func (in *Interpreter) showCommand(cmd thrustmap.LeverCommand, what string) {
 	m := in.model
 	in.last = result{value: cmd.Value, gate: m.GateName(cmd.Gate), tla: cmd.TLADeg, reverse: cmd.Reverse,
 		flags: cmd.Flags.Names(), clamped: cmd.Clamped.Names()}
+	if cmd.Between() {
+		in.last.between = m.GateName(cmd.Lower) + " and " + m.GateName(cmd.Upper)
+	}
 	where := "gate " + m.GateName(cmd.Gate)
 	switch {
 	case cmd.Gate < 0 && cmd.Between():
@@ -477,7 +480,7 @@ func cmdCheck(c *call) error {
 		if !ok {
 			return fmt.Errorf("check %s: the expression is %s; a check without within needs true or false", src, describe(v))
 		}
-		return c.assert(src, b, format(v), "true")
+		return c.assert(src, b, format(v), "true", []string{src})
 	}
 	got, err := c.in.number(src)
 	if err != nil {
@@ -494,7 +497,7 @@ func cmdCheck(c *call) error {
 	if t < 0 {
 		return fmt.Errorf("check: tolerance %g is negative", t)
 	}
-	return c.assert(src, math.Abs(got-w) <= t, fmt.Sprintf("%.6g", got), fmt.Sprintf("%.6g ± %g", w, t))
+	return c.assert(src, math.Abs(got-w) <= t, fmt.Sprintf("%.6g", got), fmt.Sprintf("%.6g ± %g", w, t), []string{src, tol, want})
 }
 
 // splitCheck splits "EXPR within TOL of EXPECTED" at its last "within".
@@ -511,14 +514,16 @@ func splitCheck(s string) (src, tol, want string, within bool, err error) {
 	return src, strings.TrimSpace(tol), strings.TrimSpace(want), true, nil
 }
 
-// assert records one check.
-func (c *call) assert(expr string, ok bool, got, want string) error {
+// assert records one check of expr; on a failure the variables that the
+// expressions explain read (the checked one, a tolerance, an expected value)
+// are shown with their values.
+func (c *call) assert(expr string, ok bool, got, want string, explain []string) error {
 	in := c.in
 	a := Assertion{File: c.file, Line: c.line, Expr: expr, Passed: ok}
 	if ok {
 		in.passed++
 	} else {
-		f := Failure{File: c.file, Line: c.line, Expr: expr, Got: got, Want: want}
+		f := Failure{File: c.file, Line: c.line, Expr: expr, Got: got, Want: want, Values: in.explain(explain...)}
 		a.Detail = f.String()
 		in.failed++
 		in.failures = append(in.failures, f)
@@ -555,7 +560,7 @@ func cmdExpectError(c *call) error {
 		}
 		got = fmt.Sprintf("error %q", runErr.Error())
 	}
-	return c.assert(rest, runErr != nil && strings.Contains(runErr.Error(), text), got, fmt.Sprintf("an error containing %q", text))
+	return c.assert(rest, runErr != nil && strings.Contains(runErr.Error(), text), got, fmt.Sprintf("an error containing %q", text), nil)
 }
 
 // quoted reads a leading "…" or '…' string and returns it and the rest.
@@ -693,10 +698,19 @@ func cmdPoints(c *call) error {
 	for i, h := range header {
 		col[strings.TrimSpace(h)] = i
 	}
+	const columns = "rating,alt_ft,oat_c,mach,bleeds,assumed_c,expected,tol (mach, bleeds and assumed_c may be left out)"
+	var missing []string
 	for _, need := range []string{"rating", "alt_ft", "oat_c", "expected", "tol"} {
 		if _, ok := col[need]; !ok {
-			return fmt.Errorf("%s:1: no %s column (want rating, alt_ft, oat_c, optional mach, bleeds, assumed_c, then expected, tol)", path, need)
+			missing = append(missing, need)
 		}
+	}
+	line, _ := r.FieldPos(0)
+	switch {
+	case len(missing) == 5:
+		return fmt.Errorf("%s:%d: no header row: the first line must name the columns, %s; it reads %q", path, line, columns, strings.Join(header, ","))
+	case len(missing) > 0:
+		return fmt.Errorf("%s:%d: the header has no %s column (want %s)", path, line, strings.Join(missing, ", no "), columns)
 	}
 	in := c.in
 	for {
@@ -770,8 +784,19 @@ func (in *Interpreter) point(path string, line int, rec []string, col map[string
 		return bad("%v", err)
 	}
 	call := &call{in: in, file: path, line: line}
+	// The name carries every condition the row gives, so no two points
+	// share a name.
 	what := fmt.Sprintf("%s at %s ft, %s °C", get("rating"), get("alt_ft"), get("oat_c"))
-	return call.assert(what, math.Abs(res.Value-want) <= tol, fmt.Sprintf("%.6g", res.Value), fmt.Sprintf("%.6g ± %g", want, tol))
+	if m := get("mach"); m != "" {
+		what += ", Mach " + m
+	}
+	if b := get("bleeds"); b != "" {
+		what += ", bleeds " + b
+	}
+	if a := get("assumed_c"); a != "" {
+		what += ", assumed " + a + " °C"
+	}
+	return call.assert(what, math.Abs(res.Value-want) <= tol, fmt.Sprintf("%.6g", res.Value), fmt.Sprintf("%.6g ± %g", want, tol), nil)
 }
 
 func axisOf(i int) grid.Axis { return grid.Axis(i) }

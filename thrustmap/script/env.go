@@ -4,11 +4,14 @@ import (
 	"fmt"
 	"maps"
 	"math"
+	"reflect"
 	"slices"
 	"strings"
 
 	"github.com/expr-lang/expr"
+	"github.com/expr-lang/expr/ast"
 	"github.com/expr-lang/expr/file"
+	"github.com/expr-lang/expr/parser"
 	"github.com/expr-lang/expr/vm"
 
 	"github.com/thrustmap/thrustmap/thrustmap"
@@ -133,6 +136,43 @@ func exprErr(src string, err error, names []string) error {
 	}
 	msg, _, _ := strings.Cut(err.Error(), "\n")
 	return fmt.Errorf("expression %q: %s%s", src, msg, thrustmap.ExprHint(msg, names))
+}
+
+// explain returns "name = value" for each variable of the session that the
+// expressions srcs read, in the order first read: what a failed check
+// compared. A gate of "" says which gates the lever was between.
+func (in *Interpreter) explain(srcs ...string) []string {
+	in.refreshEnv()
+	var names identifiers
+	for _, src := range srcs {
+		if tree, err := parser.Parse(src); err == nil {
+			ast.Walk(&tree.Node, &names)
+		}
+	}
+	var out []string
+	for _, name := range names {
+		v, known := in.env[name]
+		if !known || reflect.TypeOf(v).Kind() == reflect.Func {
+			continue
+		}
+		line := name + " = " + format(v)
+		if name == "gate" && in.last.gate == "" && in.last.between != "" {
+			line += " (between " + in.last.between + ")"
+		}
+		out = append(out, line)
+	}
+	return out
+}
+
+// identifiers collects the names an expression's syntax tree reads, each
+// once, in the order met.
+type identifiers []string
+
+// Visit records an identifier not seen before.
+func (ids *identifiers) Visit(node *ast.Node) {
+	if id, ok := (*node).(*ast.IdentifierNode); ok && !slices.Contains(*ids, id.Value) {
+		*ids = append(*ids, id.Value)
+	}
 }
 
 // eval evaluates src in the current session.

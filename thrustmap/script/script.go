@@ -54,10 +54,17 @@ type Failure struct {
 	Expr string // what was checked
 	Got  string
 	Want string
+	// Values are the variables the expression read, as "name = value",
+	// so a failure says what it compared.
+	Values []string
 }
 
 func (f Failure) String() string {
-	return fmt.Sprintf("%s:%d: check %s: got %s, want %s", f.File, f.Line, f.Expr, f.Got, f.Want)
+	s := fmt.Sprintf("%s:%d: check %s: got %s, want %s", f.File, f.Line, f.Expr, f.Got, f.Want)
+	if len(f.Values) > 0 {
+		s += " (" + strings.Join(f.Values, ", ") + ")"
+	}
+	return s
 }
 
 // Assertion is the outcome of one check, reported to an Observer.
@@ -113,6 +120,7 @@ type Interpreter struct {
 type result struct {
 	value   float64
 	gate    string
+	between string // "climb and continuous" when the lever was between gates
 	tla     float64
 	reverse bool
 	flags   []string

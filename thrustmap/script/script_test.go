@@ -177,3 +177,63 @@ func BenchmarkRun100kChecks(b *testing.B) {
 		}
 	}
 }
+
+// TestFailedChecksExplain: a failed check shows the value of every
+// variable it compared, for comparisons and within alike; a gate of "" says
+// which gates the lever was between.
+func TestFailedChecksExplain(t *testing.T) {
+	tests := []struct{ lines, want string }{
+		// Demo gates: climb at 27°, continuous at 40° (1.5° capture each), so
+		// 33° is between them.
+		{"tla 33\ncheck gate == \"takeoff\"", `check gate == "takeoff": got false, want true (gate = "" (between climb and continuous))`},
+		{"tla 27\ncheck gate == \"takeoff\" && tla > 30", `(gate = "climb", tla = 27)`},
+		{"set alt 5000 oat 15\ntarget climb\nlet want = 80\ncheck value + 0 within 0.5 of want", `(value = `},
+		{"set alt 5000 oat 15\ntarget climb\nlet want = 80\ncheck value within 0.5 of want", `, want = 80)`},
+		{"set alt 5000 oat 15\ncheck oat > isa_temp(alt) + 30", `(oat = 15, alt = 5000)`},
+	}
+	for _, tc := range tests {
+		in, out := newTest(t)
+		if err := in.Run(strings.NewReader("profile demo\n"+tc.lines+"\n"), "x.script"); err != nil {
+			t.Fatalf("%q: %v", tc.lines, err)
+		}
+		if in.Failed() != 1 || !strings.Contains(out.String(), tc.want) {
+			t.Errorf("%q: failed %d, output\n%s\nwant it to contain %q", tc.lines, in.Failed(), out, tc.want)
+		}
+	}
+}
+
+// TestPointNamesAndHeader: each test point is named by every condition its
+// row gives, and a file whose first line is data, not a header, is told the
+// columns it needs.
+func TestPointNamesAndHeader(t *testing.T) {
+	dir := t.TempDir()
+	rows := "rating,alt_ft,oat_c,mach,bleeds,assumed_c,expected,tol\n" +
+		"takeoff,2000,25,,,,1,0.1\n" +
+		"takeoff,2000,25,0.2,,,1,0.1\n" +
+		"takeoff,2000,25,,engine-anti-ice,,1,0.1\n" +
+		"takeoff,2000,25,,,45,1,0.1\n"
+	noHeader := "takeoff,2000,25,97.4,0.1\n"
+	for name, text := range map[string]string{"p.csv": rows, "nohead.csv": noHeader} {
+		if err := os.WriteFile(filepath.Join(dir, name), []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	in, out := newTest(t)
+	if err := in.Run(strings.NewReader("points "+filepath.Join(dir, "p.csv")+"\n"), filepath.Join(dir, "s.script")); err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{
+		"check takeoff at 2000 ft, 25 °C: got",
+		"check takeoff at 2000 ft, 25 °C, Mach 0.2: got",
+		"check takeoff at 2000 ft, 25 °C, bleeds engine-anti-ice: got",
+		"check takeoff at 2000 ft, 25 °C, assumed 45 °C: got",
+	} {
+		if !strings.Contains(out.String(), want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+	err := in.Run(strings.NewReader("points "+filepath.Join(dir, "nohead.csv")+"\n"), filepath.Join(dir, "s.script"))
+	if err == nil || !strings.Contains(err.Error(), "no header row: the first line must name the columns, rating,alt_ft,oat_c,mach,bleeds,assumed_c,expected,tol") {
+		t.Errorf("no header: %v", err)
+	}
+}
