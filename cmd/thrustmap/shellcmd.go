@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
+	"sync"
 
 	"github.com/chzyer/readline"
 	"github.com/spf13/cobra"
@@ -74,10 +75,56 @@ func piped(in *script.Interpreter, r io.Reader, out, errOut io.Writer) error {
 	return sc.Err()
 }
 
+// rawWriter writes to a terminal that the line editor may have put in raw
+// mode, where a line feed moves the cursor down without returning it to the
+// first column: while raw, every "\n" not already after "\r" goes out as
+// "\r\n", so output after a command and completion lists start at column 0.
+type rawWriter struct {
+	mu     sync.Mutex
+	w      io.Writer
+	raw    bool
+	lastCR bool // the last byte written was "\r"
+}
+
+// setRaw records whether the terminal is in raw mode.
+func (r *rawWriter) setRaw(raw bool) {
+	r.mu.Lock()
+	r.raw = raw
+	r.mu.Unlock()
+}
+
+// Write implements io.Writer.
+func (r *rawWriter) Write(p []byte) (int, error) {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	if len(p) == 0 {
+		return 0, nil
+	}
+	if !r.raw {
+		r.lastCR = p[len(p)-1] == '\r'
+		return r.w.Write(p)
+	}
+	out := make([]byte, 0, len(p)+8)
+	prevCR := r.lastCR
+	for _, b := range p {
+		if b == '\n' && !prevCR {
+			out = append(out, '\r')
+		}
+		out = append(out, b)
+		prevCR = b == '\r'
+	}
+	r.lastCR = prevCR
+	if _, err := r.w.Write(out); err != nil {
+		return 0, err
+	}
+	return len(p), nil
+}
+
 // interactive runs the readline prompt on the terminal tty.
 func interactive(in *script.Interpreter, tty *os.File, out, errOut io.Writer) error {
 	fd := int(tty.Fd())
 	var saved *term.State
+	rawOut, rawErr := &rawWriter{w: out}, &rawWriter{w: errOut}
 	cfg := &readline.Config{
 		Prompt:          "thrustmap> ",
 		HistoryFile:     historyFile(),
@@ -85,17 +132,21 @@ func interactive(in *script.Interpreter, tty *os.File, out, errOut io.Writer) er
 		InterruptPrompt: "^C",
 		EOFPrompt:       "",
 		Stdin:           io.NopCloser(tty),
-		Stdout:          out,
-		Stderr:          errOut,
+		Stdout:          rawOut,
+		Stderr:          rawErr,
 		FuncIsTerminal:  func() bool { return true },
 		FuncMakeRaw: func() (err error) {
 			saved, err = term.MakeRaw(fd)
+			rawOut.setRaw(err == nil)
+			rawErr.setRaw(err == nil)
 			return err
 		},
 		FuncExitRaw: func() error {
 			if saved == nil {
 				return nil
 			}
+			rawOut.setRaw(false)
+			rawErr.setRaw(false)
 			return term.Restore(fd, saved)
 		},
 		FuncGetWidth: func() int {
