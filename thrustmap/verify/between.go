@@ -3,7 +3,8 @@ package verify
 // Checks of what interpolation does between grid lines, where the checks of
 // verify.go, which read the tables' nodes, cannot see: a monotone table that
 // turns where its data do not (monotone_bump; docs/methods.md,
-// Interpolation).
+// Interpolation) and a flat-rated table whose flat region is cut between
+// altitude rows (corner_cut; docs/methods.md, Flat rating and corners).
 
 import (
 	"fmt"
@@ -11,6 +12,7 @@ import (
 	"strings"
 
 	"github.com/thrustmap/thrustmap/thrustmap"
+	"github.com/thrustmap/thrustmap/thrustmap/atmos"
 	"github.com/thrustmap/thrustmap/thrustmap/grid"
 )
 
@@ -426,4 +428,130 @@ func checkGridBump(r *Report, label string, g *grid.Grid, basis thrustmap.Temper
 			verb, b.size, b.vFrom, coord(b.axis, basis, b.from[b.axis]), b.vTo, coord(b.axis, basis, b.to[b.axis]),
 			strings.Join(around, "; "), data, term, nodeSpan(g, b.axis, basis, b.window[0], b.window[1], " to "))
 	}
+}
+
+// cut is the worst fall below the corner between altitude rows.
+type cut struct {
+	drop, alt, mach, corner float64 // the corner in the axis's own terms
+	tFrom, tTo, vFrom, vTo  float64
+}
+
+// checkCornerCut reports the worst cut of a rating's flat region (see
+// cornerCut).
+func checkCornerCut(r *Report, rt *thrustmap.Rating) {
+	c, ok := cornerCut(rt)
+	if !ok {
+		return
+	}
+	where := fmt.Sprintf("%s, %.0f ft", rt.Name(), c.alt)
+	if rt.Table().Has(grid.Mach) {
+		where += fmt.Sprintf(", Mach %g", c.mach)
+	}
+	basis := rt.Basis()
+	advice := "an ISA_DEV axis with corner_isa_dev_c keeps the corner on one column at every altitude"
+	if basis == thrustmap.ISADev {
+		advice = "a temperature column at the corner keeps it (on an ISA_DEV axis the corner is one column at every altitude)"
+	}
+	r.warnf(CheckCornerCut, where,
+		"between the altitude rows the value falls from %.6g at %s to %.6g at %s (by %.3g) although the corner there is %s: "+
+			"below the corner the rating is flat, so interpolation cut the flat region; %s",
+		c.vFrom, coord(grid.Temperature, basis, c.tFrom), c.vTo, coord(grid.Temperature, basis, c.tTo), c.drop,
+		coord(grid.Temperature, basis, c.corner), advice)
+}
+
+// cornerCut: below the corner a flat-rated table is flat (or rises, for
+// N1), on the altitude rows and between them. Between rows whose corners
+// sit at different temperatures of the axis, interpolation mixes one row's
+// flat region with the other's falling one and cuts the flat region. The
+// table is sampled at altitudes between the rows and, at each (and at each
+// Mach point), at temperatures up to the corner interpolated there
+// (Rating.CornerOAT); the worst fall beyond the tolerance is returned.
+// Rows that fall below their own corner are left to falls_below_corner.
+func cornerCut(rt *thrustmap.Rating) (cut, bool) {
+	var worst cut
+	t := rt.Table()
+	if !t.Has(grid.Temperature) || !t.Has(grid.Altitude) || rt.Basis() == thrustmap.TAT {
+		return worst, false
+	}
+	if _, _, _, ok := rt.Corner(); !ok {
+		return worst, false
+	}
+	alts, temps := t.Axis(grid.Altitude), t.Axis(grid.Temperature)
+	machs := []float64{0}
+	if t.Has(grid.Mach) {
+		machs = t.Axis(grid.Mach)
+	}
+	basis := rt.Basis()
+	// cornerAt is the corner at an altitude in the axis's own terms.
+	cornerAt := func(alt float64) (float64, bool) {
+		isa, err := atmos.ISATemperatureC(alt)
+		if err != nil {
+			return 0, false
+		}
+		c, _ := rt.CornerOAT(alt, isa)
+		if basis == thrustmap.ISADev {
+			c -= isa
+		}
+		return c, true
+	}
+	// rowFlat: row i does not fall below its own corner.
+	rowFlat := func(i int) bool {
+		c, ok := cornerAt(alts[i])
+		if !ok {
+			return false
+		}
+		for m := range max(1, t.Points(grid.Mach)) {
+			for j := 1; j < len(temps) && temps[j] <= c+1e-9; j++ {
+				if t.Node([grid.NumAxes]int{i, j, m}) < t.Node([grid.NumAxes]int{i, j - 1, m}) {
+					return false
+				}
+			}
+		}
+		return true
+	}
+	tol := tolerance(t.Values())
+	level := tol * 1e-6 // rounding in a flat stretch
+	k := cellSamples[0]
+	for i := 0; i+1 < len(alts); i++ {
+		if !rowFlat(i) || !rowFlat(i+1) {
+			continue
+		}
+		for j := 1; j <= k; j++ {
+			alt := alts[i] + (alts[i+1]-alts[i])*float64(j)/float64(k+1)
+			corner, ok := cornerAt(alt)
+			if !ok {
+				continue
+			}
+			ts := samplesUpTo(temps, k, corner)
+			for _, m := range machs {
+				hi, tHi := math.Inf(-1), 0.0
+				for _, x := range ts {
+					v, _ := t.At([grid.NumAxes]float64{alt, x, m})
+					if d := hi - v; d > tol && d > worst.drop {
+						worst = cut{drop: d, alt: alt, mach: m, corner: corner, tFrom: tHi, tTo: x, vFrom: hi, vTo: v}
+					}
+					if v >= hi-level { // the last sample at the top: where the fall begins
+						hi, tHi = max(hi, v), x
+					}
+				}
+			}
+		}
+	}
+	return worst, worst.drop > 0
+}
+
+// samplesUpTo returns the points of axis xs and k evenly spaced points
+// inside each cell, those below top, then top itself (when inside the axis).
+func samplesUpTo(xs []float64, k int, top float64) []float64 {
+	var out []float64
+	for i := 0; i+1 < len(xs); i++ {
+		for j := 0; j <= k; j++ {
+			x := xs[i] + (xs[i+1]-xs[i])*float64(j)/float64(k+1)
+			if x >= top {
+				break
+			}
+			out = append(out, x)
+		}
+	}
+	return append(out, min(top, xs[len(xs)-1]))
 }

@@ -274,8 +274,113 @@ func additive(t *testing.T) *grid.Grid {
 	return g
 }
 
-// TestBetweenMessages: the finding names the place in the table's own
-// terms and says what to do.
+// cornerProfile is a small EPR profile whose takeoff rating has the given
+// temperature lines (TOML).
+func cornerProfile(t *testing.T, rating string) *thrustmap.Rating {
+	t.Helper()
+	text := `schema = 1
+name = "corner test engine (invented)"
+parameter = "EPR"
+
+[[rating]]
+name = "takeoff"
+` + rating
+	p, err := thrustmap.ParseProfile("corner.toml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rt, _ := p.Rating("takeoff")
+	return rt
+}
+
+// TestCornerCut: between altitude rows whose corners sit on different OAT
+// columns, linear interpolation cuts the flat region; with the corner on
+// one column at every altitude it does not.
+func TestCornerCut(t *testing.T) {
+	tests := []struct {
+		name   string
+		rating string
+		ok     bool
+		want   cut
+	}{
+		{
+			// The review's case, worked by hand. Row 0 ft is flat 1.520 to
+			// its corner 29 °C; row 2000 ft is flat 1.539 to its corner
+			// 25 °C and 1.518 at 29 °C. At the fraction f of the way up, the
+			// corner is 29 − 4f °C; at 25 °C the value is
+			// (1−f)·1.520 + f·1.539, at the corner
+			// (1−f)·1.520 + f·(1.539 − 0.021·(1−f)), a drop of 0.021·f·(1−f),
+			// largest at f = ½: 1000 ft, 1.52950 at 25 °C, 1.52425 at the
+			// corner 27 °C, a drop of 0.00525.
+			"OAT columns, a corner per row", `
+temperature = "OAT"
+altitude_ft = [0, 2000]
+temperature_c = [-40, 25, 29, 40]
+corner_c = [29, 25]
+values = [
+  [1.520, 1.520, 1.520, 1.466],
+  [1.539, 1.539, 1.518, 1.464],
+]`, true, cut{drop: 0.00525, alt: 1000, corner: 27, tFrom: 25, tTo: 27, vFrom: 1.52950, vTo: 1.52425},
+		},
+		{
+			// The same rows on an ISA_DEV axis with the corner at ISA+10 on a
+			// column: between the rows, at any ISA deviation up to +10, the
+			// value is a weighted mean of two flat values. No cut.
+			"ISA_DEV, corner on a column", `
+temperature = "ISA_DEV"
+altitude_ft = [0, 2000]
+temperature_c = [-40, 0, 10, 25]
+corner_isa_dev_c = 10
+values = [
+  [1.520, 1.520, 1.520, 1.466],
+  [1.539, 1.539, 1.539, 1.464],
+]`, false, cut{},
+		},
+		{
+			// OAT columns and the same corner on every row: as above.
+			"OAT columns, one corner", `
+temperature = "OAT"
+altitude_ft = [0, 2000, 4000]
+temperature_c = [-40, 25, 29, 40]
+corner_c = [25, 25, 25]
+values = [
+  [1.520, 1.520, 1.500, 1.466],
+  [1.539, 1.539, 1.518, 1.464],
+  [1.555, 1.555, 1.530, 1.460],
+]`, false, cut{},
+		},
+		{
+			// Falling below its own corner is the row's fault
+			// (falls_below_corner), not interpolation's.
+			"a row that falls itself", `
+temperature = "OAT"
+altitude_ft = [0, 2000]
+temperature_c = [-40, 25, 29, 40]
+corner_c = [29, 25]
+values = [
+  [1.520, 1.510, 1.520, 1.466],
+  [1.539, 1.539, 1.518, 1.464],
+]`, false, cut{},
+		},
+	}
+	for _, tc := range tests {
+		got, ok := cornerCut(cornerProfile(t, tc.rating))
+		if ok != tc.ok {
+			t.Errorf("%s: found %v (%+v), want %v", tc.name, ok, got, tc.ok)
+			continue
+		}
+		w := tc.want
+		for _, d := range [][2]float64{{got.drop, w.drop}, {got.alt, w.alt}, {got.corner, w.corner}, {got.tFrom, w.tFrom}, {got.tTo, w.tTo}, {got.vFrom, w.vFrom}, {got.vTo, w.vTo}} {
+			if math.Abs(d[0]-d[1]) > 1e-9 {
+				t.Errorf("%s: got %+v, want %+v", tc.name, got, w)
+				break
+			}
+		}
+	}
+}
+
+// TestBetweenMessages: the findings name the place in the table's own
+// terms and say what to do.
 func TestBetweenMessages(t *testing.T) {
 	var r Report
 	checkGridBump(&r, "climb", climbGrid(t, false, grid.Monotone), thrustmap.TAT, tolerance(climbGrid(t, false, grid.Monotone).Values()))
@@ -284,6 +389,25 @@ func TestBetweenMessages(t *testing.T) {
 	}
 	f := r.Warnings[0]
 	for _, s := range []string{"climb, along TAT at 6667 ft", "rises by 0.00728", "TAT -10.0 °C", "0 and 10000 ft", "fall or stay flat", "not jointly", `interpolation = "linear"`} {
+		if !strings.Contains(f.Where+": "+f.Message, s) {
+			t.Errorf("%q does not say %q", f.Where+": "+f.Message, s)
+		}
+	}
+	r = Report{}
+	checkCornerCut(&r, cornerProfile(t, `
+temperature = "OAT"
+altitude_ft = [0, 2000]
+temperature_c = [-40, 25, 29, 40]
+corner_c = [29, 25]
+values = [
+  [1.520, 1.520, 1.520, 1.466],
+  [1.539, 1.539, 1.518, 1.464],
+]`))
+	if len(r.Warnings) != 1 {
+		t.Fatalf("want one warning, got %+v", r.Warnings)
+	}
+	f = r.Warnings[0]
+	for _, s := range []string{"takeoff, 1000 ft", "1.5295 at OAT 25.0 °C", "1.52425 at OAT 27.0 °C", "by 0.00525", "corner there is OAT 27.0 °C", "ISA_DEV axis with corner_isa_dev_c"} {
 		if !strings.Contains(f.Where+": "+f.Message, s) {
 			t.Errorf("%q does not say %q", f.Where+": "+f.Message, s)
 		}
@@ -303,6 +427,41 @@ func BenchmarkMonotoneBump(b *testing.B) {
 		}
 		if len(l.bumps(tol)) == 0 {
 			b.Fatal("no bump")
+		}
+	}
+}
+
+// BenchmarkCornerCut samples a takeoff table of 8 rows and 21 OAT columns
+// with a corner per row between its rows.
+func BenchmarkCornerCut(b *testing.B) {
+	p, err := thrustmap.ParseProfile("corner.toml", []byte(`schema = 1
+name = "corner benchmark engine (invented)"
+parameter = "EPR"
+
+[[rating]]
+name = "takeoff"
+temperature = "OAT"
+altitude_ft = [-1000, 0, 2000, 4000, 6000, 8000, 10000, 12000]
+temperature_c = [-40, -20, 0, 5, 9, 10, 13, 15, 17, 20, 21, 25, 29, 30, 31, 35, 40, 45, 50, 55, 60]
+corner_c = [31, 29, 25, 21, 17, 13, 9, 5]
+values = [
+  [1.510, 1.510, 1.510, 1.510, 1.510, 1.510, 1.510, 1.510, 1.510, 1.510, 1.510, 1.510, 1.510, 1.510, 1.510, 1.490, 1.466, 1.443, 1.421, 1.401, 1.381],
+  [1.520, 1.520, 1.520, 1.520, 1.520, 1.520, 1.520, 1.520, 1.520, 1.520, 1.520, 1.520, 1.520, 1.515, 1.510, 1.490, 1.466, 1.443, 1.422, 1.401, 1.381],
+  [1.539, 1.539, 1.539, 1.539, 1.539, 1.539, 1.539, 1.539, 1.539, 1.539, 1.539, 1.539, 1.518, 1.512, 1.507, 1.487, 1.464, 1.441, 1.420, 1.399, 1.380],
+  [1.555, 1.555, 1.555, 1.555, 1.555, 1.555, 1.555, 1.555, 1.555, 1.555, 1.555, 1.533, 1.512, 1.507, 1.502, 1.483, 1.459, 1.437, 1.415, 1.395, 1.376],
+  [1.569, 1.569, 1.569, 1.569, 1.569, 1.569, 1.569, 1.569, 1.569, 1.553, 1.547, 1.526, 1.505, 1.500, 1.495, 1.476, 1.452, 1.430, 1.409, 1.389, 1.370],
+  [1.582, 1.582, 1.582, 1.582, 1.582, 1.582, 1.582, 1.570, 1.559, 1.543, 1.537, 1.516, 1.496, 1.491, 1.486, 1.467, 1.444, 1.423, 1.402, 1.382, 1.364],
+  [1.593, 1.593, 1.593, 1.593, 1.593, 1.587, 1.570, 1.558, 1.547, 1.531, 1.526, 1.505, 1.485, 1.481, 1.476, 1.457, 1.435, 1.414, 1.394, 1.374, 1.356],
+  [1.603, 1.603, 1.603, 1.603, 1.579, 1.573, 1.556, 1.545, 1.534, 1.519, 1.514, 1.493, 1.474, 1.469, 1.465, 1.446, 1.425, 1.404, 1.384, 1.365, 1.348],
+]
+`))
+	if err != nil {
+		b.Fatal(err)
+	}
+	rt, _ := p.Rating("takeoff")
+	for b.Loop() {
+		if _, ok := cornerCut(rt); !ok {
+			b.Fatal("no cut")
 		}
 	}
 }

@@ -22,6 +22,7 @@ const (
 	CheckFallsBelowCorner  = "falls_below_corner"       // takeoff falls with temperature below the corner
 	CheckRisesPastCorner   = "rises_past_corner"        // takeoff rises with temperature past the corner
 	CheckCornerColumn      = "corner_between_columns"   // no temperature column at the corner
+	CheckCornerCut         = "corner_cut"               // between altitude rows interpolation cuts the flat region below the corner
 	CheckMonotoneBump      = "monotone_bump"            // a monotone table turns between grid lines where its data do not
 	CheckOutlier           = "outlier"                  // a cell out of line with its neighbours
 	CheckEnvelope          = "envelope_not_covered"     // the declared envelope outside a grid
@@ -132,6 +133,7 @@ func Profile(r *Report, p *thrustmap.Profile, cal *thrustmap.Calibration) {
 	checkOrder(r, p, s)
 	for _, rt := range p.Ratings() {
 		checkCorner(r, p, rt)
+		checkCornerCut(r, rt)
 		checkOutliers(r, rt)
 		checkMonotoneBump(r, p, rt)
 	}
