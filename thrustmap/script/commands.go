@@ -21,37 +21,95 @@ import (
 
 // Command describes one command of the language.
 type Command struct {
-	Name  string
-	Usage string
-	Help  string
-	run   func(c *call) error
+	Name    string
+	Usage   string
+	Help    string
+	Example string // lines that run on the demo profile and calibration
+	run     func(c *call) error
 }
 
 var commands []*Command
 
 func init() {
 	commands = []*Command{
-		{"profile", "profile NAME|FILE", "Load a profile: a file, or an embedded name (demo, demo-epr, demo-turboprop). Lever states and compiled expressions are reset.", cmdProfile},
-		{"calibration", "calibration NAME|FILE", "Load a lever calibration: a file, or an embedded demo profile's name for its built-in one.", cmdCalibration},
-		{"set", "set KEY VALUE [KEY VALUE]...", "Set conditions. Keys: alt (ft, m, FL), oat (C, F, K), mach, assumed (a temperature or off), ground (on or off).", cmdSet},
-		{"field", "field ELEVATION QNH", "Set the pressure altitude from a field elevation and QNH (hPa or inHg; a bare 850–1100 is hPa, 25–35 inHg).", cmdField},
-		{"bleed", "bleed NAME on|off", "Switch a bleed flag of the profile on or off.", cmdBleed},
-		{"show", "show", "Show the profile, calibration and conditions.", cmdShow},
-		{"ratings", "ratings", "List the profile's ratings with their axes.", cmdRatings},
-		{"gates", "gates", "List the profile's gates in TLA order.", cmdGates},
-		{"target", "target RATING", "Compute a rating's target at the conditions (reduced by the assumed temperature when set and the rating allows it). Sets value.", cmdTarget},
-		{"lever", "lever ID RAW [RAW]...", "Feed raw counts to a lever of the calibration, in order, through its own state (deadband, hysteresis). Sets value, gate, tla, reverse.", cmdLever},
-		{"tla", "tla DEGREES", "The command at a lever angle with the profile's own gate zones. Sets value, gate, tla, reverse.", cmdTLA},
-		{"let", "let NAME = EXPRESSION", "Define a named value for later expressions.", cmdLet},
-		{"print", "print EXPRESSION", "Print an expression's value.", cmdPrint},
-		{"check", "check EXPRESSION [within TOL of EXPECTED]", "Assert that a true-or-false expression holds, or that a number is within TOL of EXPECTED.", cmdCheck},
-		{"expect-error", "expect-error \"TEXT\" COMMAND...", "Assert that the command fails with a message containing TEXT.", cmdExpectError},
-		{"points", "points FILE.csv", "Check test points: CSV columns rating, alt_ft, oat_c, optional mach, bleeds (names joined by +), assumed_c, then expected, tol.", cmdPoints},
-		{"include", "include FILE", "Run another script (relative to this one).", cmdInclude},
-		{"point", "point LEVER RAW DEGREES", "Add a calibration point at a known angle to a lever (for pot taper), replacing one at the same angle. Save with save.", cmdPoint},
-		{"save", "save FILE", "Write the session's calibration atomically (the previous file kept as FILE.bak).", cmdSave},
-		{"help", "help [COMMAND]", "List the commands, or describe one.", cmdHelp},
+		{Name: "profile", Usage: "profile NAME|FILE", run: cmdProfile,
+			Help:    "Load a profile: a file, or an embedded name (demo, demo-epr, demo-turboprop). Lever states and compiled expressions are reset.",
+			Example: "profile demo-epr"},
+		{Name: "calibration", Usage: "calibration NAME|FILE", run: cmdCalibration,
+			Help:    "Load a lever calibration: a file, or an embedded demo profile's name for its built-in one.",
+			Example: "calibration demo"},
+		{Name: "set", Usage: "set KEY VALUE [KEY VALUE]...", run: cmdSet,
+			Help:    "Set conditions. Keys: alt (ft, m, FL), oat (C, F, K), mach, assumed (a temperature or off), ground (on or off).",
+			Example: "set alt FL100 oat -5 mach 0.4 ground off"},
+		{Name: "field", Usage: "field ELEVATION QNH", run: cmdField,
+			Help:    "Set the pressure altitude from a field elevation and QNH (hPa or inHg; a bare 850–1100 is hPa, 25–35 inHg).",
+			Example: "field 5400 29.77inHg"},
+		{Name: "bleed", Usage: "bleed NAME on|off", run: cmdBleed,
+			Help:    "Switch a bleed flag of the profile on or off.",
+			Example: "bleed engine-anti-ice on"},
+		{Name: "show", Usage: "show", run: cmdShow,
+			Help:    "Show the profile, calibration and conditions.",
+			Example: "show"},
+		{Name: "ratings", Usage: "ratings", run: cmdRatings,
+			Help:    "List the profile's ratings with their axes.",
+			Example: "ratings"},
+		{Name: "gates", Usage: "gates", run: cmdGates,
+			Help:    "List the profile's gates in TLA order.",
+			Example: "gates"},
+		{Name: "target", Usage: "target RATING", run: cmdTarget,
+			Help:    "Compute a rating's target at the conditions (reduced by the assumed temperature when set and the rating allows it). Sets value.",
+			Example: "set alt 2000 oat 30 ground on\ntarget takeoff"},
+		{Name: "lever", Usage: "lever ID RAW [RAW]...", run: cmdLever,
+			Help:    "Feed raw counts to a lever of the calibration, in order, through its own state (deadband, hysteresis). Sets value, gate, tla, reverse.",
+			Example: "lever 1 2000 2010 2380"},
+		{Name: "tla", Usage: "tla DEGREES", run: cmdTLA,
+			Help:    "The command at a lever angle with the profile's own gate zones. Sets value, gate, tla, reverse.",
+			Example: "tla 27"},
+		{Name: "let", Usage: "let NAME = EXPRESSION", run: cmdLet,
+			Help:    "Define a named value for later expressions.",
+			Example: "let margin = rating('takeoff') - rating('climb')\nprint margin"},
+		{Name: "print", Usage: "print EXPRESSION", run: cmdPrint,
+			Help:    "Print an expression's value.",
+			Example: "print isa_temp(alt) + 15"},
+		{Name: "check", Usage: "check EXPRESSION [within TOL of EXPECTED]", run: cmdCheck,
+			Help:    "Assert that a true-or-false expression holds, or that a number is within TOL of EXPECTED. A failed check prints the values it compared.",
+			Example: "tla 27\ncheck gate == \"climb\"\ncheck value within 0.01 of rating('climb')"},
+		{Name: "expect-error", Usage: "expect-error \"TEXT\" COMMAND...", run: cmdExpectError,
+			Help:    "Assert that the command fails with a message containing TEXT.",
+			Example: "expect-error \"unknown rating\" target warp"},
+		{Name: "points", Usage: "points FILE.csv", run: cmdPoints,
+			Help:    "Check test points: CSV columns rating, alt_ft, oat_c, optional mach, bleeds (names joined by +), assumed_c, then expected, tol.",
+			Example: "points points.csv"},
+		{Name: "include", Usage: "include FILE", run: cmdInclude,
+			Help:    "Run another script (relative to this one).",
+			Example: "include more-checks.script"},
+		{Name: "point", Usage: "point LEVER RAW DEGREES", run: cmdPoint,
+			Help:    "Add a calibration point at a known angle to a lever (for pot taper), replacing one at the same angle. Save with save.",
+			Example: "point 1 1900 13"},
+		{Name: "save", Usage: "save FILE", run: cmdSave,
+			Help:    "Write the session's calibration atomically (the previous file kept as FILE.bak).",
+			Example: "point 1 1900 13\nsave my-levers.toml"},
+		{Name: "help", Usage: "help [COMMAND]", run: cmdHelp,
+			Help:    "List the commands, or describe one.",
+			Example: "help check"},
+		{Name: "exit", Usage: "exit", run: cmdExit,
+			Help:    "Leave the shell (it asks first when an edited calibration is not saved). Same as quit. A script simply ends at its last line.",
+			Example: "exit"},
+		{Name: "quit", Usage: "quit", run: cmdExit,
+			Help:    "Leave the shell. Same as exit.",
+			Example: "quit"},
 	}
+}
+
+// ErrExit is returned by exit and quit: the shell leaves; a script stops
+// there without error.
+var ErrExit = errors.New("exit")
+
+func cmdExit(c *call) error {
+	if c.rest != "" {
+		return errors.New("exit and quit take no arguments")
+	}
+	return ErrExit
 }
 
 // Commands returns the language's commands, for help and completion.
@@ -653,7 +711,7 @@ func cmdHelp(c *call) error {
 		if cmd == nil {
 			return fmt.Errorf("help: unknown command %q", c.rest)
 		}
-		in.printf("%s\n  %s\n", cmd.Usage, cmd.Help)
+		in.printf("%s\n  %s\n  Example:\n    %s\n", cmd.Usage, cmd.Help, strings.ReplaceAll(cmd.Example, "\n", "\n    "))
 		return nil
 	}
 	for _, cmd := range commands {

@@ -165,6 +165,9 @@ func (in *Interpreter) CalibrationEdited() bool { return in.calEdited }
 // Profile returns the session's profile.
 func (in *Interpreter) Profile() *thrustmap.Profile { return in.profile }
 
+// Calibration returns the session's lever calibration, or nil.
+func (in *Interpreter) Calibration() *thrustmap.Calibration { return in.cal }
+
 // Names returns the names defined with let.
 func (in *Interpreter) Names() []string {
 	var out []string
@@ -186,12 +189,15 @@ func (in *Interpreter) RunFile(path string) error {
 
 // Run runs the script read from r; name is its file name in messages and
 // the base of relative include and points paths. It stops at the first
-// script error (an *Error) and, with FailFast, the first failed assertion.
+// script error (an *Error), with FailFast at the first failed assertion,
+// and without error at exit or quit.
 func (in *Interpreter) Run(r io.Reader, name string) error {
 	sc := bufio.NewScanner(r)
 	sc.Buffer(make([]byte, 64*1024), 1024*1024)
 	for n := 1; sc.Scan(); n++ {
-		if err := in.Exec(sc.Text(), name, n); err != nil {
+		if err := in.Exec(sc.Text(), name, n); errors.Is(err, ErrExit) {
+			return nil
+		} else if err != nil {
 			return err
 		}
 	}
@@ -218,7 +224,7 @@ func (in *Interpreter) Exec(line, file string, n int) error {
 	switch {
 	case err == nil:
 		return nil
-	case errors.Is(err, ErrFailFast):
+	case errors.Is(err, ErrFailFast), errors.Is(err, ErrExit):
 		return err
 	}
 	var se *Error

@@ -237,3 +237,45 @@ func TestPointNamesAndHeader(t *testing.T) {
 		t.Errorf("no header: %v", err)
 	}
 }
+
+// TestHelpExamplesRun: every command's help has a usage line and an example,
+// and each example runs on the demo profile and calibration without a script
+// error or a failed check (files it names are made in a scratch directory).
+func TestHelpExamplesRun(t *testing.T) {
+	dir := t.TempDir()
+	files := map[string]string{
+		"points.csv":         "rating,alt_ft,oat_c,expected,tol\nidle,0,15,0,1000\n",
+		"more-checks.script": "check 1 + 1 == 2\n",
+	}
+	for name, text := range files {
+		if err := os.WriteFile(filepath.Join(dir, name), []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for _, cmd := range Commands() {
+		if cmd.Usage == "" || !strings.HasPrefix(cmd.Usage, cmd.Name) || cmd.Example == "" {
+			t.Errorf("%s: usage %q, example %q", cmd.Name, cmd.Usage, cmd.Example)
+			continue
+		}
+		if !strings.HasPrefix(cmd.Example, cmd.Name) && !strings.Contains(cmd.Example, "\n"+cmd.Name) {
+			t.Errorf("%s: the example %q does not use the command", cmd.Name, cmd.Example)
+		}
+		in, out := newTest(t)
+		src := "profile demo\ncalibration demo\n" + cmd.Example + "\n"
+		if err := in.Run(strings.NewReader(src), filepath.Join(dir, "example.script")); err != nil {
+			t.Errorf("%s: example fails: %v\n%s", cmd.Name, err, out)
+		}
+		if in.Failed() > 0 {
+			t.Errorf("%s: example fails a check:\n%s", cmd.Name, out)
+		}
+	}
+	in, out := newTest(t)
+	if err := in.Run(strings.NewReader("help\nhelp check\n"), "h.script"); err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"  exit ", "  quit ", "Example:\n    tla 27\n    check gate == \"climb\""} {
+		if !strings.Contains(out.String(), want) {
+			t.Errorf("help lacks %q:\n%s", want, out)
+		}
+	}
+}
