@@ -32,6 +32,13 @@ var demoUse = map[string]useEnvelope{
 		// cruise is a cruise schedule: flown from 0.3 Mach up
 		airFrom: map[string]float64{"cruise": 0.3},
 	},
+	"demo-epr": {
+		fieldFt: [2]float64{-1000, 12000}, ceiling: 39000, mmo: 0.8, turboFan: true,
+		ground: []string{"takeoff", "continuous", "climb", "idle", "reverse"},
+		lowAir: []string{"go-around"},
+		air:    []string{"continuous", "climb", "idle"},
+	},
+
 }
 
 // machBand is the Mach flown at a pressure altitude: a jet climbs at 250 kt

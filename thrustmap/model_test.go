@@ -283,9 +283,9 @@ func TestReducedTakeoffGate(t *testing.T) {
 // on the ground, the assumed-temperature value with an assumed temperature
 // set, go-around in the air. Values worked by hand from the demo-epr tables
 // at sea level, OAT 15 °C (ISA): takeoff row 0 ft is flat at 1.520 up to its
-// corner, go-around at 1.510; at an assumed 45 °C the takeoff table gives
-// 1.443 (its 45 °C column) with rated thrust 82.8 kN of 98.0 kN (15.5 %, inside
-// the 25 % limit), above maximum continuous at ISA (1.440).
+// corner (ISA+14), go-around at 1.510; an assumed 45 °C is ISA+30, the
+// takeoff table's ISA+30 column: 1.444, with rated thrust 82.9 kN of 98.0 kN
+// (15.4 %, inside the 25 % limit), above maximum continuous at ISA (1.440).
 func TestReducedInsideTakeoffGate(t *testing.T) {
 	m := demoModel(t, "demo-epr")
 	ground := Conditions{AltitudeFt: 0, OATC: 15, OnGround: true}
@@ -299,7 +299,7 @@ func TestReducedInsideTakeoffGate(t *testing.T) {
 		want float64
 	}{
 		{"takeoff on the ground", ground, 1.520},
-		{"reduced inside the gate", reduced, 1.443},
+		{"reduced inside the gate", reduced, 1.444},
 		{"go-around in the air", air, 1.510},
 	} {
 		var s LeverState
