@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"path/filepath"
 	"strings"
 
 	"github.com/schollz/progressbar/v3"
@@ -60,7 +61,21 @@ type junitSuite struct {
 	Tests    int         `xml:"tests,attr"`
 	Failures int         `xml:"failures,attr"`
 	Errors   int         `xml:"errors,attr"`
+	Skipped  int         `xml:"skipped,attr"`
 	Cases    []junitCase `xml:"testcase"`
+}
+
+// count sets the suite's totals from its test cases, so they always agree.
+func (s *junitSuite) count() {
+	s.Tests, s.Failures, s.Errors, s.Skipped = len(s.Cases), 0, 0, 0
+	for _, c := range s.Cases {
+		switch {
+		case c.Failure != nil:
+			s.Failures++
+		case c.Error != nil:
+			s.Errors++
+		}
+	}
 }
 
 type junitCase struct {
@@ -72,6 +87,7 @@ type junitCase struct {
 
 type junitFailure struct {
 	Message string `xml:"message,attr"`
+	Type    string `xml:"type,attr,omitempty"`
 	Text    string `xml:",chardata"`
 }
 
@@ -83,12 +99,15 @@ func newRunCmd() *cobra.Command {
 		Use:   "run [-p PROFILE] [-c CAL] [--junit FILE] [--fail-fast] [-v] SCRIPT...",
 		Short: "Run scripts of checks; exit 1 when any check fails",
 		Long: `run executes scripts in thrustmap's command language (see the shell's help), each
-in a fresh session on the given profile and calibration. Every failed check is
-reported with its file:line, what was checked, what it gave and what was
-expected; the run ends with a line "N passed, N failed". With -v the output of
-every command is shown too. Exit status: 0 all
-passed, 1 a check failed, 2 a script error (bad syntax, an unknown name, a file
-that will not load — with its file:line).
+in a fresh session on the given profile and calibration. Every script given
+runs, whatever happened in the others; a script error (bad syntax, an unknown
+name, a file that will not load) ends that script, reported with its
+file:line. Every failed check is reported with its file:line, what was
+checked, what it gave and what was expected; the run ends with a line
+"N passed, N failed", script errors counted as failed. With -v the output of
+every command is shown too; --fail-fast stops the whole run at the first
+failed check or script error. --junit writes one test suite per script.
+Exit status: 0 all passed, 1 a check failed, 2 a script had an error.
 
 ` + safetyNote,
 		Args: cobra.MinimumNArgs(1),
@@ -102,8 +121,7 @@ that will not load — with its file:line).
 						progressbar.OptionClearOnFinish(), progressbar.OptionThrottle(100_000_000))
 				}
 			}
-			passed, failed := 0, 0
-			var scriptErr error
+			passed, failed, scriptErrs := 0, 0, 0
 			for _, path := range args {
 				shown := io.Discard
 				if verbose {
@@ -114,24 +132,31 @@ that will not load — with its file:line).
 					return err
 				}
 				in.FailFast = failFast
+				classname := strings.TrimSuffix(path, filepath.Ext(path))
 				suite := junitSuite{Name: path}
 				in.Observer = func(a script.Assertion) {
-					c := junitCase{Name: fmt.Sprintf("%s:%d %s", a.File, a.Line, a.Expr), Classname: strings.TrimSuffix(path, ".tm")}
+					c := junitCase{Name: fmt.Sprintf("%s:%d %s", a.File, a.Line, a.Expr), Classname: classname}
 					if !a.Passed {
-						c.Failure = &junitFailure{Message: a.Detail, Text: a.Detail}
+						c.Failure = &junitFailure{Message: a.Detail, Type: "check failed", Text: a.Detail}
 					}
 					suite.Cases = append(suite.Cases, c)
 				}
 				err = runScript(in, path, bar)
 				passed, failed = passed+in.Passed(), failed+in.Failed()
-				suite.Tests, suite.Failures = len(suite.Cases), in.Failed()
 				if err != nil && !errors.Is(err, script.ErrFailFast) {
-					suite.Errors = 1
-					suite.Cases = append(suite.Cases, junitCase{Name: path, Classname: "script", Error: &junitFailure{Message: err.Error(), Text: err.Error()}})
-					scriptErr = err
+					// A script error ends this script only; it counts as failed.
+					scriptErrs++
+					fmt.Fprintf(out, "ERROR %v\n", err)
+					name := path + " script error"
+					var se *script.Error
+					if errors.As(err, &se) && se.File != "" {
+						name = fmt.Sprintf("%s:%d script error", se.File, se.Line)
+					}
+					suite.Cases = append(suite.Cases, junitCase{Name: name, Classname: classname, Error: &junitFailure{Message: err.Error(), Type: "script error", Text: err.Error()}})
 				}
+				suite.count()
 				suites.Suites = append(suites.Suites, suite)
-				if err != nil {
+				if failFast && (in.Failed() > 0 || err != nil) {
 					break
 				}
 			}
@@ -151,10 +176,10 @@ that will not load — with its file:line).
 					return err
 				}
 			}
-			fmt.Fprintf(out, "%d passed, %d failed\n", passed, failed)
+			fmt.Fprintf(out, "%d passed, %d failed\n", passed, failed+scriptErrs)
 			switch {
-			case scriptErr != nil:
-				return scriptErr
+			case scriptErrs > 0:
+				return fmt.Errorf("%d script(s) had an error (see ERROR above)", scriptErrs)
 			case failed > 0:
 				return &checksFailed{msg: fmt.Sprintf("%d check(s) failed", failed)}
 			}
@@ -163,7 +188,7 @@ that will not load — with its file:line).
 	}
 	sf.register(cmd)
 	cmd.Flags().StringVar(&junit, "junit", "", "write a JUnit XML report to FILE")
-	cmd.Flags().BoolVar(&failFast, "fail-fast", false, "stop at the first failed check")
+	cmd.Flags().BoolVar(&failFast, "fail-fast", false, "stop the whole run at the first failed check or script error")
 	cmd.Flags().BoolVarP(&verbose, "verbose", "v", false, "show every command's output")
 	return cmd
 }
