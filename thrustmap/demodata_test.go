@@ -38,7 +38,11 @@ var demoUse = map[string]useEnvelope{
 		lowAir: []string{"go-around"},
 		air:    []string{"continuous", "climb", "idle"},
 	},
-
+	"demo-turboprop": {
+		fieldFt: [2]float64{0, 10000}, ceiling: 25000, mmo: 0.5,
+		ground: []string{"takeoff", "continuous", "climb", "cruise", "idle", "reverse"},
+		air:    []string{"takeoff", "continuous", "climb", "cruise", "idle"},
+	},
 }
 
 // machBand is the Mach flown at a pressure altitude: a jet climbs at 250 kt
@@ -76,7 +80,11 @@ func temps(alt float64) []float64 {
 // really are outside the data. Anti-ice corrections are checked where anti-ice
 // is used, at OAT (on the ground) or TAT (in the air) of 10 °C and below.
 func TestDemoRatingsCoverTheirUse(t *testing.T) {
-	for name, u := range demoUse {
+	for _, name := range EmbeddedProfiles() {
+		u, ok := demoUse[name]
+		if !ok {
+			t.Fatalf("%s: no use envelope in demoUse", name)
+		}
 		p, err := LoadProfile(name)
 		if err != nil {
 			t.Fatal(err)
