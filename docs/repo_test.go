@@ -31,7 +31,7 @@ func moduleRoot(t *testing.T) string {
 }
 
 // sourceFiles calls fn with the path (relative to the module root) and text
-// of every .go, .md, .h, .tm and .txtar file of the repository.
+// of every .go, .md, .h, .script, .tm and .txtar file of the repository.
 func sourceFiles(t *testing.T, fn func(rel string, text []byte)) {
 	t.Helper()
 	root := moduleRoot(t)
@@ -47,7 +47,7 @@ func sourceFiles(t *testing.T, fn func(rel string, text []byte)) {
 			return nil
 		}
 		switch filepath.Ext(path) {
-		case ".go", ".md", ".h", ".tm", ".txtar":
+		case ".go", ".md", ".h", ".script", ".tm", ".txtar":
 		default:
 			return nil
 		}

@@ -107,6 +107,8 @@ checked, what it gave and what was expected; the run ends with a line
 "N passed, N failed", script errors counted as failed. With -v the output of
 every command is shown too; --fail-fast stops the whole run at the first
 failed check or script error. --junit writes one test suite per script.
+Scripts conventionally end in .script, but any file given is read, whatever
+its name ends in (older .tm files run as they are).
 Exit status: 0 all passed, 1 a check failed, 2 a script had an error.
 
 ` + safetyNote,

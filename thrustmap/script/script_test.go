@@ -47,14 +47,14 @@ func TestScriptErrors(t *testing.T) {
 		{"check 1 within -1 of 1", "tolerance -1 is negative"},
 		{"lever x 100", `lever id "x" is not a number`},
 		{"expect-error unquoted target x", "usage: expect-error"},
-		{"include nosuch.tm", "no such file"},
+		{"include nosuch.script", "no such file"},
 	}
 	for _, tc := range tests {
 		in, _ := newTest(t)
-		err := in.Run(strings.NewReader("# a comment\n\n"+tc.line+"\nprint 1\n"), "s.tm")
+		err := in.Run(strings.NewReader("# a comment\n\n"+tc.line+"\nprint 1\n"), "s.script")
 		var se *Error
-		if !errors.As(err, &se) || se.File != "s.tm" || se.Line != 3 || !strings.Contains(err.Error(), tc.want) {
-			t.Errorf("%q: err = %v, want s.tm:3 and %q", tc.line, err, tc.want)
+		if !errors.As(err, &se) || se.File != "s.script" || se.Line != 3 || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%q: err = %v, want s.script:3 and %q", tc.line, err, tc.want)
 		}
 	}
 }
@@ -77,17 +77,17 @@ func TestChecks(t *testing.T) {
 		`expect-error "unknown rating" target takeoff`, // fails: no error
 		"check on_ground",                              // fails
 	}, "\n")
-	if err := in.Run(strings.NewReader(src), "c.tm"); err != nil {
+	if err := in.Run(strings.NewReader(src), "c.script"); err != nil {
 		t.Fatal(err)
 	}
 	if in.Passed() != 3 || in.Failed() != 3 || len(seen) != 6 {
 		t.Fatalf("passed %d failed %d seen %d", in.Passed(), in.Failed(), len(seen))
 	}
 	f := in.Failures()[0]
-	if f.File != "c.tm" || f.Line != 5 || f.Expr != "value" || f.Got != "93.5" || f.Want != "95 ± 0.1" {
+	if f.File != "c.script" || f.Line != 5 || f.Expr != "value" || f.Got != "93.5" || f.Want != "95 ± 0.1" {
 		t.Errorf("failure %+v", f)
 	}
-	if !strings.Contains(out.String(), "FAIL c.tm:9: check target takeoff: got no error") {
+	if !strings.Contains(out.String(), "FAIL c.script:9: check target takeoff: got no error") {
 		t.Errorf("output:\n%s", out)
 	}
 }
@@ -102,11 +102,11 @@ func TestPointsAndSave(t *testing.T) {
 	}
 	hand, _ := filepath.Abs("../testdata/handworked.toml")
 	src := fmt.Sprintf("profile %s\npoints p.csv\nprofile demo\ncalibration demo\npoint 1 1900 13\nsave cal.toml\ncalibration cal.toml\nlever 1 1900\ncheck tla within 1e-9 of 13\n", hand)
-	if err := os.WriteFile(filepath.Join(dir, "s.tm"), []byte(src), 0o644); err != nil {
+	if err := os.WriteFile(filepath.Join(dir, "s.script"), []byte(src), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	in, out := newTest(t)
-	if err := in.RunFile(filepath.Join(dir, "s.tm")); err != nil {
+	if err := in.RunFile(filepath.Join(dir, "s.script")); err != nil {
 		t.Fatal(err)
 	}
 	if in.Passed() != 2 || in.Failed() != 1 || !strings.Contains(out.String(), "p.csv:3: check takeoff at 0 ft, 30 °C: got 95") {
@@ -119,7 +119,7 @@ func TestPointsAndSave(t *testing.T) {
 
 // TestNoFiles: a sandboxed session refuses file commands.
 func TestNoFiles(t *testing.T) {
-	for _, line := range []string{"include x.tm", "save x.toml", "points x.csv", "profile ./x.toml", "calibration x"} {
+	for _, line := range []string{"include x.script", "save x.toml", "points x.csv", "profile ./x.toml", "calibration x"} {
 		in, _ := newTest(t)
 		in.NoFiles = true
 		if err := in.Exec(line, "f", 1); !errors.Is(err, errNoFiles) {
@@ -147,7 +147,7 @@ func FuzzInterpreter(f *testing.F) {
 			t.Fatal(err)
 		}
 		in.NoFiles = true
-		in.Run(strings.NewReader(src), "fuzz.tm")
+		in.Run(strings.NewReader(src), "fuzz.script")
 		if v, ok := in.env["value"].(float64); ok && math.IsNaN(v) {
 			t.Fatal("NaN reached the session's value")
 		}
@@ -169,7 +169,7 @@ func BenchmarkRun100kChecks(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		if err := in.Run(strings.NewReader(src), "bench.tm"); err != nil {
+		if err := in.Run(strings.NewReader(src), "bench.script"); err != nil {
 			b.Fatal(err)
 		}
 		if in.Passed() != 100_000 {
