@@ -21,13 +21,13 @@ import (
 // COptions tune the generated C.
 type COptions struct {
 	// Prefix starts every name the C file declares: functions and types
-	// as given, macros in upper case ("tm_" gives tm_target and TM_OK).
-	// It must be a C identifier that is not reserved; "" means "tm_".
+	// as given, macros in upper case ("engine_" gives engine_target and ENGINE_OK).
+	// It must be a C identifier that is not reserved; "" means "engine_".
 	Prefix string
 }
 
 // DefaultCPrefix is the C prefix used when COptions.Prefix is empty.
-const DefaultCPrefix = "tm_"
+const DefaultCPrefix = "engine_"
 
 // ErrCExport is wrapped by every error WriteC returns about a model it
 // cannot translate faithfully or an option it cannot use.
@@ -62,8 +62,8 @@ type cGen struct {
 	m      *thrustmap.Model
 	p      *thrustmap.Profile
 	cal    *thrustmap.Calibration
-	prefix string // e.g. "tm_"
-	upper  string // e.g. "TM_"
+	prefix string // e.g. "engine_"
+	upper  string // e.g. "ENGINE_"
 	b      bytes.Buffer
 
 	ratings []*thrustmap.Rating
@@ -287,7 +287,7 @@ func (g *cGen) addGate(i int, gt thrustmap.Gate) error {
 		v := &tlaFinder{}
 		ast.Walk(&node, v)
 		g.anyTLA = g.anyTLA || v.found
-		name := fmt.Sprintf("tm__x%d", len(g.exprs))
+		name := fmt.Sprintf("engine__x%d", len(g.exprs))
 		g.exprs = append(g.exprs, cExprFn{name: name, boolean: e.boolean, body: body,
 			comment: fmt.Sprintf("gate %q %s: %s", gt.Name, e.key, e.src)})
 		*e.out = name
@@ -445,10 +445,10 @@ func (t *cExprTr) number(n ast.Node) (string, error) {
 			return "fabs(" + args[0] + ")", nil
 		case n.Name == "min" && len(args) == 2:
 			t.g.uses["min"] = true
-			return "tm__math_min(" + args[0] + ", " + args[1] + ")", nil
+			return "engine__math_min(" + args[0] + ", " + args[1] + ")", nil
 		case n.Name == "max" && len(args) == 2:
 			t.g.uses["max"] = true
-			return "tm__math_max(" + args[0] + ", " + args[1] + ")", nil
+			return "engine__math_max(" + args[0] + ", " + args[1] + ")", nil
 		}
 	}
 	return "", unsupported(n, "a number")
@@ -487,7 +487,7 @@ func (t *cExprTr) call(n *ast.CallNode) (string, error) {
 			break
 		}
 		t.g.uses[id.Value] = true
-		return fmt.Sprintf("tm__e_%s(x, %d)", id.Value, r), nil
+		return fmt.Sprintf("engine__e_%s(x, %d)", id.Value, r), nil
 	case "rating_at":
 		r := rating()
 		f, err := nums(min(1, len(args)))
@@ -498,7 +498,7 @@ func (t *cExprTr) call(n *ast.CallNode) (string, error) {
 			break
 		}
 		t.g.uses["rating_at"] = true
-		return fmt.Sprintf("tm__e_rating_at(x, %d, %s, %s)", r, f[0], f[1]), nil
+		return fmt.Sprintf("engine__e_rating_at(x, %d, %s, %s)", r, f[0], f[1]), nil
 	case "isa_temp", "clamp", "lerp":
 		f, err := nums(0)
 		if err != nil {
@@ -507,13 +507,13 @@ func (t *cExprTr) call(n *ast.CallNode) (string, error) {
 		switch {
 		case id.Value == "isa_temp" && len(f) == 1:
 			t.g.uses["isa_temp"] = true
-			return "tm__e_isa_temp(x, " + f[0] + ")", nil
+			return "engine__e_isa_temp(x, " + f[0] + ")", nil
 		case id.Value == "clamp" && len(f) == 3:
 			t.g.uses["min"], t.g.uses["max"] = true, true
-			return "tm__math_max(" + f[1] + ", tm__math_min(" + f[2] + ", " + f[0] + "))", nil
+			return "engine__math_max(" + f[1] + ", engine__math_min(" + f[2] + ", " + f[0] + "))", nil
 		case id.Value == "lerp" && len(f) == 3:
 			t.g.uses["lerp"] = true
-			return "tm__e_lerp(" + f[0] + ", " + f[1] + ", " + f[2] + ")", nil
+			return "engine__e_lerp(" + f[0] + ", " + f[1] + ", " + f[2] + ")", nil
 		}
 	}
 	return "", unsupported(n, "a number")
@@ -679,13 +679,13 @@ func cComment(s string) string {
 	return s
 }
 
-var cPrefixToken = regexp.MustCompile(`\b(tm|TM)_`)
+var cPrefixToken = regexp.MustCompile(`\b(engine|ENGINE)_`)
 
-// code writes C text with the placeholder prefixes tm_ and TM_ replaced by
+// code writes C text with the placeholder prefixes engine_ and ENGINE_ replaced by
 // the chosen ones; args are inserted afterwards, untouched.
 func (g *cGen) code(format string, args ...any) {
 	format = cPrefixToken.ReplaceAllStringFunc(format, func(s string) string {
-		if s == "TM_" {
+		if s == "ENGINE_" {
 			return g.upper
 		}
 		return g.prefix
@@ -716,7 +716,7 @@ func (g *cGen) numbers(vs []float64) {
 func (g *cGen) write() {
 	g.header()
 	g.declarations()
-	g.code("\n#ifndef TM_HEADER_ONLY\n")
+	g.code("\n#ifndef ENGINE_HEADER_ONLY\n")
 	g.code(cTypes)
 	g.tables()
 	g.code(cGridCode)
@@ -725,7 +725,7 @@ func (g *cGen) write() {
 	}
 	g.code(cGridAtCode)
 	if g.anyMonotone {
-		g.code("    if (g->method == 1)\n        return tm__cubic(g, 0, 0, q, seg);\n")
+		g.code("    if (g->method == 1)\n        return engine__cubic(g, 0, 0, q, seg);\n")
 	} else {
 		g.code("    (void)seg; /* no monotone table */\n")
 	}
@@ -737,7 +737,7 @@ func (g *cGen) write() {
 	g.gateTables()
 	g.modelCode()
 	g.publicCode()
-	g.code("\n#endif /* TM_HEADER_ONLY */\n")
+	g.code("\n#endif /* ENGINE_HEADER_ONLY */\n")
 }
 
 // header writes the opening comment: what the file is, where it came from,
@@ -893,14 +893,14 @@ func gridText(c cGrid) string {
 func (g *cGen) declarations() {
 	p := g.p
 	g.code(cDeclHead)
-	g.code("\n#define TM_NUM_RATINGS %d\n#define TM_NUM_GATES %d\n#define TM_NUM_LEVERS %d\n#define TM_NUM_BLEEDS %d\n",
+	g.code("\n#define ENGINE_NUM_RATINGS %d\n#define ENGINE_NUM_GATES %d\n#define ENGINE_NUM_LEVERS %d\n#define ENGINE_NUM_BLEEDS %d\n",
 		len(g.rats), len(g.gates), len(g.geoms)-1, len(p.Bleeds()))
-	g.code("#define TM_PARAMETER %s\n#define TM_UNIT %s\n", cString(p.Parameter().String()), cString(p.Parameter().Unit()))
+	g.code("#define ENGINE_PARAMETER %s\n#define ENGINE_UNIT %s\n", cString(p.Parameter().String()), cString(p.Parameter().Unit()))
 	stops := [2]float64{math.Inf(-1), math.Inf(1)} // no [lever]: no end stops
 	if lv := p.Lever(); lv.TLAMinDeg < lv.TLAMaxDeg {
 		stops = [2]float64{lv.TLAMinDeg, lv.TLAMaxDeg}
 	}
-	g.code("#define TM_TLA_MIN_DEG %s /* the lever's end stops */\n#define TM_TLA_MAX_DEG %s\n", cNum(stops[0]), cNum(stops[1]))
+	g.code("#define ENGINE_TLA_MIN_DEG %s /* the lever's end stops */\n#define ENGINE_TLA_MAX_DEG %s\n", cNum(stops[0]), cNum(stops[1]))
 	g.code(cDeclBody)
 }
 
@@ -913,15 +913,15 @@ func (g *cGen) tables() {
 			if xs == nil {
 				continue
 			}
-			g.code("static const double tm__g%d_%s[%d] = {", i, axisNames[a], len(xs))
+			g.code("static const double engine__g%d_%s[%d] = {", i, axisNames[a], len(xs))
 			g.numbers(xs)
 			g.code("};\n")
 		}
-		g.code("static const double tm__g%d_v[%d] = {", i, len(c.values))
+		g.code("static const double engine__g%d_v[%d] = {", i, len(c.values))
 		g.numbers(c.values)
 		g.code("};\n")
 	}
-	g.code("\nstatic const tm__grid tm__grids[%d] = {\n", len(g.grids))
+	g.code("\nstatic const engine__grid engine__grids[%d] = {\n", len(g.grids))
 	for i, c := range g.grids {
 		var order, lens, strides, ptrs []string
 		stride := 1
@@ -935,7 +935,7 @@ func (g *cGen) tables() {
 		for a, xs := range c.axes {
 			if xs != nil {
 				order = append(order, strconv.Itoa(a))
-				ptrs = append(ptrs, fmt.Sprintf("tm__g%d_%s", i, axisNames[a]))
+				ptrs = append(ptrs, fmt.Sprintf("engine__g%d_%s", i, axisNames[a]))
 			} else {
 				ptrs = append(ptrs, "0")
 			}
@@ -950,7 +950,7 @@ func (g *cGen) tables() {
 		if c.method == grid.Monotone {
 			method = 1
 		}
-		g.code("    {%d, %d, {%s}, {%s}, {%s}, {%s}, tm__g%d_v},\n", method, dims,
+		g.code("    {%d, %d, {%s}, {%s}, {%s}, {%s}, engine__g%d_v},\n", method, dims,
 			strings.Join(order, ", "), g.codeStr(strings.Join(ptrs, ", ")), strings.Join(lens, ", "), strings.Join(strides, ", "), i)
 	}
 	g.code("};\n")
@@ -958,20 +958,20 @@ func (g *cGen) tables() {
 	// Corners one OAT per altitude row.
 	for i, cr := range g.rats {
 		if cr.corner == 2 {
-			g.code("\nstatic const double tm__corner%d_alt[%d] = {", i, len(cr.alts))
+			g.code("\nstatic const double engine__corner%d_alt[%d] = {", i, len(cr.alts))
 			g.numbers(cr.alts)
-			g.code("};\nstatic const double tm__corner%d_oat[%d] = {", i, len(cr.oats))
+			g.code("};\nstatic const double engine__corner%d_oat[%d] = {", i, len(cr.oats))
 			g.numbers(cr.oats)
 			g.code("};\n")
 		}
 	}
 	g.code("\n/* name, basis, table, thrust, corner, corner ISA deviation, corner rows, assumed, needs ISA, corrections */\n")
-	g.code("static const tm__rating tm__ratings[%d] = {\n", len(g.rats))
+	g.code("static const engine__rating engine__ratings[%d] = {\n", len(g.rats))
 	for i, cr := range g.rats {
 		r := cr.r
 		alts, oats := "0", "0"
 		if cr.corner == 2 {
-			alts, oats = g.codeStr(fmt.Sprintf("tm__corner%d_alt", i)), g.codeStr(fmt.Sprintf("tm__corner%d_oat", i))
+			alts, oats = g.codeStr(fmt.Sprintf("engine__corner%d_alt", i)), g.codeStr(fmt.Sprintf("engine__corner%d_oat", i))
 		}
 		g.code("    {%s, %d, %d, %d, %d, %s, %s, %s, %d, %d, %d, %d, %d},\n",
 			cString(r.Name()), int(r.Basis()), cr.table, cr.thrust, cr.corner, cNum(cr.isaDev), alts, oats, len(cr.alts),
@@ -983,12 +983,12 @@ func (g *cGen) tables() {
 	if len(corrs) == 0 {
 		corrs = []cCorrection{{bleed: 0, grid: -1}} // C has no empty arrays; no rating refers to it
 	}
-	g.code("static const tm__correction tm__corrections[%d] = {\n", len(corrs))
+	g.code("static const engine__correction engine__corrections[%d] = {\n", len(corrs))
 	for _, c := range corrs {
 		g.code("    {%d, %s, %d},\n", c.bleed, cNum(c.delta), c.grid)
 	}
 	g.code("};\n")
-	g.code("\nstatic const char *const tm__bleed_names[%d] = {", max(1, len(g.p.Bleeds())))
+	g.code("\nstatic const char *const engine__bleed_names[%d] = {", max(1, len(g.p.Bleeds())))
 	if len(g.p.Bleeds()) == 0 {
 		g.b.WriteString("0")
 	}
@@ -1004,7 +1004,7 @@ func (g *cGen) tables() {
 // codeStr applies the prefix to a generated fragment.
 func (g *cGen) codeStr(s string) string {
 	return cPrefixToken.ReplaceAllStringFunc(s, func(t string) string {
-		if t == "TM_" {
+		if t == "ENGINE_" {
 			return g.upper
 		}
 		return g.prefix
@@ -1034,18 +1034,18 @@ func (g *cGen) ratingCode() {
 		}
 		g.code(cCornerHead)
 		if g.anyPerAltCorner {
-			g.code("    case 2:\n        *out = tm__interp1(r->corner_alts, r->corner_oats, r->corner_n, alt);\n        return 1;\n")
+			g.code("    case 2:\n        *out = engine__interp1(r->corner_alts, r->corner_oats, r->corner_n, alt);\n        return 1;\n")
 		}
 		g.code(cCornerTail)
 		g.code(cReduceCode, cNum(thrustmap.TemperatureTolC), cNum(a.MaxC), cNum(a.MaxC), cNum(a.MaxReductionPct))
 		if g.p.Parameter() == thrustmap.N1 && a.Corrected {
-			g.code("    /* Same corrected speed N1/sqrt(theta) as at Ta. */\n    v *= sqrt((oat + TM__KELVIN) / (ta + TM__KELVIN));\n")
+			g.code("    /* Same corrected speed N1/sqrt(theta) as at Ta. */\n    v *= sqrt((oat + ENGINE__KELVIN) / (ta + ENGINE__KELVIN));\n")
 		}
-		g.code("    return tm__min_builtin(v, full);\n}\n")
+		g.code("    return engine__min_builtin(v, full);\n}\n")
 	}
 	g.code(cTargetHead)
 	if g.anyAssumed && a != nil {
-		g.code("    if (c->assumed_set && r->assumed)\n        value = tm__reduce(r, c, isa, full, res);\n")
+		g.code("    if (c->assumed_set && r->assumed)\n        value = engine__reduce(r, c, isa, full, res);\n")
 	}
 	g.code(cTargetTail)
 }
@@ -1062,7 +1062,7 @@ func (g *cGen) exprCode() {
 		g.code(cMathMax)
 	}
 	if g.uses["lerp"] {
-		g.code("\nstatic double tm__e_lerp(double a, double b, double f)\n{\n    return a + (b - a) * f;\n}\n")
+		g.code("\nstatic double engine__e_lerp(double a, double b, double f)\n{\n    return a + (b - a) * f;\n}\n")
 	}
 	if g.uses["rating"] {
 		g.code(cERating)
@@ -1081,7 +1081,7 @@ func (g *cGen) exprCode() {
 		if e.boolean {
 			ret = "int"
 		}
-		g.code("\n/* %s */\nstatic %s %s(tm__ctx *x)\n{\n    (void)x;\n    return ", cComment(e.comment), ret, g.codeStr(e.name))
+		g.code("\n/* %s */\nstatic %s %s(engine__ctx *x)\n{\n    (void)x;\n    return ", cComment(e.comment), ret, g.codeStr(e.name))
 		g.b.WriteString(g.codeStr(e.body))
 		g.code(";\n}\n")
 	}
@@ -1099,7 +1099,7 @@ func (g *cGen) gateTables() {
 	} else {
 		g.code(cGateType)
 	}
-	g.code("\n/* name, TLA, rating (-1: none), target, when */\nstatic const tm__gate tm__gates[TM_NUM_GATES] = {\n")
+	g.code("\n/* name, TLA, rating (-1: none), target, when */\nstatic const engine__gate engine__gates[ENGINE_NUM_GATES] = {\n")
 	for _, cg := range g.gates {
 		target, when := "0", "0"
 		if cg.target != "" {
@@ -1116,7 +1116,7 @@ func (g *cGen) gateTables() {
 	}
 	g.code("};\n")
 	g.code("\n/* calibration id, calibrated, forward grid, inverse grid, inverted, monotone fit,\n   device range, calibrated raw range, deadband, capture and hysteresis per gate */\n")
-	g.code("static const tm__geom tm__geoms[%d] = {\n", len(g.geoms))
+	g.code("static const engine__geom engine__geoms[%d] = {\n", len(g.geoms))
 	for _, geo := range g.geoms {
 		var rawMin, rawMax, dead float64
 		if geo.cal != nil {
@@ -1138,7 +1138,7 @@ func (g *cGen) gateTables() {
 
 func (g *cGen) modelCode() {
 	lv := g.p.Lever()
-	g.code("\n#define TM__IDLE (%d)\n#define TM__ALWAYS 0x%xu\n", g.idle, g.always)
+	g.code("\n#define ENGINE__IDLE (%d)\n#define ENGINE__ALWAYS 0x%xu\n", g.idle, g.always)
 	g.code(cStateCode)
 	// own
 	g.code(cOwnHead)
@@ -1151,7 +1151,7 @@ func (g *cGen) modelCode() {
 	case g.hasWhen:
 		g.code(cActiveWhen)
 	case g.hasTarget:
-		g.code("    const tm__gate *g = &tm__gates[i];\n")
+		g.code("    const engine__gate *g = &engine__gates[i];\n")
 	default:
 		g.code("    (void)s;\n    (void)i;\n    (void)tla;\n    return 1;\n}\n")
 	}
@@ -1164,11 +1164,11 @@ func (g *cGen) modelCode() {
 	g.code(cEffectiveCode, max(g.idle, 0))
 	g.code(cCommandHead)
 	if g.anyTLA {
-		g.code("    } else {\n        /* A gate expression reads tla: work the gates out at every position. */\n        tm__invalidate(s, c);\n")
+		g.code("    } else {\n        /* A gate expression reads tla: work the gates out at every position. */\n        engine__invalidate(s, c);\n")
 	}
 	g.code(cCommandBody)
 	if g.idle >= 0 {
-		g.code("    if (tla < tm__gates[TM__IDLE].tla - geo->capture[TM__IDLE]) {\n        out->reverse = 1;\n")
+		g.code("    if (tla < engine__gates[ENGINE__IDLE].tla - geo->capture[ENGINE__IDLE]) {\n        out->reverse = 1;\n")
 		if lv.ReverseOnGroundOnly {
 			g.code(cInterlock)
 		}
@@ -1184,72 +1184,72 @@ func (g *cGen) publicCode() {
 	}
 }
 
-// ---- the C, with tm_ and TM_ standing for the chosen prefix ----
+// ---- the C, with engine_ and ENGINE_ standing for the chosen prefix ----
 
 const cDeclHead = `
-#ifndef TM_DECLARED
-#define TM_DECLARED
+#ifndef ENGINE_DECLARED
+#define ENGINE_DECLARED
 
 #include <math.h>
 #include <stdint.h>
 #include <string.h>
 `
 
-const cDeclBody = `#define TM_NO_LEVER (-1) /* CommandAtTLA with the profile's own gate zones */
+const cDeclBody = `#define ENGINE_NO_LEVER (-1) /* CommandAtTLA with the profile's own gate zones */
 
 /* Return codes. */
-#define TM_OK 0
-#define TM_ERR_CONDITIONS (-1) /* not finite, outside the standard atmosphere, Mach outside 0-5, or below absolute zero */
-#define TM_ERR_RATING (-2)     /* no rating of that index */
-#define TM_ERR_LEVER (-3)      /* no lever of that id, or a lever without calibration */
-#define TM_ERR_INPUT (-4)      /* a raw count or lever angle that is not a finite number */
-#define TM_ERR_NO_GATE (-5)    /* no gate is active at these conditions */
+#define ENGINE_OK 0
+#define ENGINE_ERR_CONDITIONS (-1) /* not finite, outside the standard atmosphere, Mach outside 0-5, or below absolute zero */
+#define ENGINE_ERR_RATING (-2)     /* no rating of that index */
+#define ENGINE_ERR_LEVER (-3)      /* no lever of that id, or a lever without calibration */
+#define ENGINE_ERR_INPUT (-4)      /* a raw count or lever angle that is not a finite number */
+#define ENGINE_ERR_NO_GATE (-5)    /* no gate is active at these conditions */
 
-/* tm_command.flags and tm_result.flags */
-#define TM_FLAG_RAISED 0x1u    /* raised to the effective target of the gate nearer idle */
-#define TM_FLAG_LIMITED 0x2u   /* cut to the redline */
-#define TM_FLAG_INTERLOCK 0x4u /* reverse selected in the air: holding idle */
-#define TM_FLAG_FALLBACK 0x8u  /* a gate expression failed: its rating or the last command was used */
+/* engine_command.flags and engine_result.flags */
+#define ENGINE_FLAG_RAISED 0x1u    /* raised to the effective target of the gate nearer idle */
+#define ENGINE_FLAG_LIMITED 0x2u   /* cut to the redline */
+#define ENGINE_FLAG_INTERLOCK 0x4u /* reverse selected in the air: holding idle */
+#define ENGINE_FLAG_FALLBACK 0x8u  /* a gate expression failed: its rating or the last command was used */
 
 /* .clamped: inputs held at the edge of a table or range */
-#define TM_CLAMP_ALTITUDE 0x1u
-#define TM_CLAMP_TEMPERATURE 0x2u
-#define TM_CLAMP_MACH 0x4u
-#define TM_CLAMP_RAW 0x8u     /* raw counts beyond the calibrated points */
-#define TM_CLAMP_DEVICE 0x10u /* raw counts beyond the device range */
-#define TM_CLAMP_LEVER 0x20u  /* lever angle beyond the end stops: held at the stop */
+#define ENGINE_CLAMP_ALTITUDE 0x1u
+#define ENGINE_CLAMP_TEMPERATURE 0x2u
+#define ENGINE_CLAMP_MACH 0x4u
+#define ENGINE_CLAMP_RAW 0x8u     /* raw counts beyond the calibrated points */
+#define ENGINE_CLAMP_DEVICE 0x10u /* raw counts beyond the device range */
+#define ENGINE_CLAMP_LEVER 0x20u  /* lever angle beyond the end stops: held at the stop */
 
-/* tm_result.reasons: the assumed-temperature rules that acted, in order */
-#define TM_REASON_TA_NOT_ABOVE_OAT 0x1u
-#define TM_REASON_TA_BELOW_CORNER 0x2u
-#define TM_REASON_TA_ABOVE_MAX 0x4u
-#define TM_REASON_REDUCTION_LIMITED 0x8u
-#define TM_REASON_REDUCTION_NOT_CHECKED 0x10u
+/* engine_result.reasons: the assumed-temperature rules that acted, in order */
+#define ENGINE_REASON_TA_NOT_ABOVE_OAT 0x1u
+#define ENGINE_REASON_TA_BELOW_CORNER 0x2u
+#define ENGINE_REASON_TA_ABOVE_MAX 0x4u
+#define ENGINE_REASON_REDUCTION_LIMITED 0x8u
+#define ENGINE_REASON_REDUCTION_NOT_CHECKED 0x10u
 
 typedef struct {
     double alt_ft;    /* pressure altitude, ft */
     double oat_c;     /* outside (static) air temperature, deg C */
     double mach;
-    uint64_t bleeds;  /* bit i: bleed i is on (tm_bleed_index) */
+    uint64_t bleeds;  /* bit i: bleed i is on (engine_bleed_index) */
     int on_ground;
     int assumed_set;  /* an assumed temperature is selected */
     double assumed_c; /* the assumed temperature, deg C, when assumed_set */
-} tm_conditions;
+} engine_conditions;
 
 typedef struct {
     double value;
-    uint32_t flags;   /* TM_FLAG_LIMITED */
-    uint32_t clamped; /* TM_CLAMP_* */
+    uint32_t flags;   /* ENGINE_FLAG_LIMITED */
+    uint32_t clamped; /* ENGINE_CLAMP_* */
     /* The assumed-temperature method, when evaluated (assumed_set and an assumed-temperature rating). */
     int evaluated;
     int applied;           /* the value was reduced */
-    uint32_t reasons;      /* TM_REASON_* */
+    uint32_t reasons;      /* ENGINE_REASON_* */
     double assumed_c;      /* as asked */
     double effective_c;    /* the temperature the value was taken at */
     double value_full;     /* the full rated value at the actual conditions */
     int thrust_checked;    /* the rating has a thrust grid */
     double thrust_reduction_pct;
-} tm_result;
+} engine_result;
 
 typedef struct {
     double tla_deg;
@@ -1258,9 +1258,9 @@ typedef struct {
     int lower, upper; /* gates interpolated between, or -1 inside a capture zone */
     double fraction;  /* between lower's and upper's zone edges, 0 to 1 */
     int reverse;
-    uint32_t flags;   /* TM_FLAG_* */
-    uint32_t clamped; /* TM_CLAMP_* */
-} tm_command;
+    uint32_t flags;   /* ENGINE_FLAG_* */
+    uint32_t clamped; /* ENGINE_CLAMP_* */
+} engine_command;
 
 /* Private: one gate's values at the state's conditions. */
 typedef struct {
@@ -1269,9 +1269,9 @@ typedef struct {
     uint32_t own_flags, own_clamp;
     double eff;
     uint32_t flags, clamp;
-} tm__gate_eval;
+} engine__gate_eval;
 
-/* One lever's state: zero it (or tm_lever_reset) before first use. The
+/* One lever's state: zero it (or engine_lever_reset) before first use. The
    fields after has_last are a cache of gate values at cond. */
 typedef struct {
     double held;
@@ -1280,40 +1280,40 @@ typedef struct {
     double last;
     int has_last;
     int geom_plus1;
-    tm_conditions cond;
+    engine_conditions cond;
     int when_failed;
     uint32_t when_known, when_true, own_known, eff_known;
-    tm__gate_eval gates[TM_NUM_GATES];
-} tm_lever_state;
+    engine__gate_eval gates[ENGINE_NUM_GATES];
+} engine_lever_state;
 
 /* The index of the named rating, or -1. */
-int tm_rating_index(const char *name);
+int engine_rating_index(const char *name);
 /* The name of rating i, or "" when there is none. */
-const char *tm_rating_name(int rating);
-/* The bit of the named bleed in tm_conditions.bleeds, or -1. */
-int tm_bleed_index(const char *name);
+const char *engine_rating_name(int rating);
+/* The bit of the named bleed in engine_conditions.bleeds, or -1. */
+int engine_bleed_index(const char *name);
 /* The name of gate i, or "" when there is none (as for gate -1). */
-const char *tm_gate_name(int gate);
+const char *engine_gate_name(int gate);
 /* The rating's target at c: table, reduction (when c->assumed_set and the
    rating is an assumed-temperature rating), bleed corrections, redline. */
-int tm_target(int rating, const tm_conditions *c, tm_result *out);
+int engine_target(int rating, const engine_conditions *c, engine_result *out);
 /* Returns a lever state to uncaptured with no held reading. */
-void tm_lever_reset(tm_lever_state *s);
+void engine_lever_reset(engine_lever_state *s);
 /* The command for lever angle tla_deg, with the gate zones of lever id
-   (TM_NO_LEVER: the profile's own). */
-int tm_command_tla(int lever, tm_lever_state *s, double tla_deg, const tm_conditions *c, tm_command *out);
-#if TM_NUM_LEVERS > 0
-/* The calibration id of calibrated lever i (0 to TM_NUM_LEVERS-1). */
-int tm_lever_id(int i);
+   (ENGINE_NO_LEVER: the profile's own). */
+int engine_command_tla(int lever, engine_lever_state *s, double tla_deg, const engine_conditions *c, engine_command *out);
+#if ENGINE_NUM_LEVERS > 0
+/* The calibration id of calibrated lever i (0 to ENGINE_NUM_LEVERS-1). */
+int engine_lever_id(int i);
 /* The command for a raw count of lever id: deadband, calibration, gates. */
-int tm_command_raw(int lever, tm_lever_state *s, double raw, const tm_conditions *c, tm_command *out);
-/* Raw count -> lever angle; clamped gets TM_CLAMP_RAW and TM_CLAMP_DEVICE. */
-int tm_raw_to_tla(int lever, double raw, double *tla_deg, uint32_t *clamped);
+int engine_command_raw(int lever, engine_lever_state *s, double raw, const engine_conditions *c, engine_command *out);
+/* Raw count -> lever angle; clamped gets ENGINE_CLAMP_RAW and ENGINE_CLAMP_DEVICE. */
+int engine_raw_to_tla(int lever, double raw, double *tla_deg, uint32_t *clamped);
 /* Lever angle -> raw count, for marking notches; clamped: beyond the calibration. */
-int tm_tla_to_raw(int lever, double tla_deg, double *raw, int *clamped);
+int engine_tla_to_raw(int lever, double tla_deg, double *raw, int *clamped);
 #endif
 
-#endif /* TM_DECLARED */
+#endif /* ENGINE_DECLARED */
 `
 
 const cTypes = `
@@ -1325,7 +1325,7 @@ typedef struct {
     int len[3];           /* 0: axis absent */
     int stride[3];
     const double *values; /* altitude outermost, Mach innermost */
-} tm__grid;
+} engine__grid;
 
 typedef struct {
     const char *name;
@@ -1337,37 +1337,37 @@ typedef struct {
     int corner_n;
     int assumed, needs_isa;
     int corr_first, corr_n;
-} tm__rating;
+} engine__rating;
 
 typedef struct {
     int bleed;
     double delta;
     int grid;
-} tm__correction;
+} engine__correction;
 
 /* The gate zones one lever sees, and its calibration. */
 typedef struct {
-    int id;                       /* calibration id, TM_NO_LEVER for the profile's own zones */
+    int id;                       /* calibration id, ENGINE_NO_LEVER for the profile's own zones */
     int calibrated;
     int forward, inverse;         /* grids raw -> TLA and TLA -> raw */
     int inverted, monotone;       /* TLA falls as raw rises; monotone fit */
     double raw_min, raw_max;      /* the device range */
     double raw_lo, raw_hi;        /* the calibrated raw range */
     double deadband;              /* counts */
-    double capture[TM_NUM_GATES]; /* the profile's, floored by the calibration's */
-    double hysteresis[TM_NUM_GATES];
-} tm__geom;
+    double capture[ENGINE_NUM_GATES]; /* the profile's, floored by the calibration's */
+    double hysteresis[ENGINE_NUM_GATES];
+} engine__geom;
 `
 
 const cGridCode = `
 /* ---- interpolation (thrustmap/grid) ---- */
 
-static double tm__lerp(double a, double b, double f)
+static double engine__lerp(double a, double b, double f)
 {
     return a * (1 - f) + b * f;
 }
 
-static int tm__segment(const double *xs, int n, double x)
+static int engine__segment(const double *xs, int n, double x)
 {
     int lo = 0, hi = n - 2;
     while (lo < hi) {
@@ -1383,7 +1383,7 @@ static int tm__segment(const double *xs, int n, double x)
 
 const cCubicCode = `
 /* Edge derivative of a Fritsch-Butland (gonum interp) monotone cubic. */
-static double tm__fb_edge(double de, double di, double he, double h, double f)
+static double engine__fb_edge(double de, double di, double he, double h, double f)
 {
     double g = (f * de - he * di) / h;
     if (g * de <= 0)
@@ -1393,38 +1393,38 @@ static double tm__fb_edge(double de, double di, double he, double h, double f)
     return g;
 }
 
-static double tm__fb_sec(const double *xs, const double *ys, int lo, int j)
+static double engine__fb_sec(const double *xs, const double *ys, int lo, int j)
 {
     return (ys[j + 1 - lo] - ys[j - lo]) / (xs[j + 1] - xs[j]);
 }
 
 /* The derivative at node k of xs (n points); ys holds nodes lo.. on. */
-static double tm__fb_slope(const double *xs, int n, const double *ys, int lo, int k)
+static double engine__fb_slope(const double *xs, int n, const double *ys, int lo, int k)
 {
     double sp, sn;
     if (n == 2)
-        return tm__fb_sec(xs, ys, lo, 0);
+        return engine__fb_sec(xs, ys, lo, 0);
     if (k == 0)
-        return tm__fb_edge(tm__fb_sec(xs, ys, lo, 0), tm__fb_sec(xs, ys, lo, 1), xs[1] - xs[0], xs[2] - xs[0], xs[1] + xs[2] - 2 * xs[0]);
+        return engine__fb_edge(engine__fb_sec(xs, ys, lo, 0), engine__fb_sec(xs, ys, lo, 1), xs[1] - xs[0], xs[2] - xs[0], xs[1] + xs[2] - 2 * xs[0]);
     if (k == n - 1)
-        return tm__fb_edge(tm__fb_sec(xs, ys, lo, n - 2), tm__fb_sec(xs, ys, lo, n - 3), xs[n - 1] - xs[n - 2], xs[n - 1] - xs[n - 3], 2 * xs[n - 1] - xs[n - 3] - xs[n - 2]);
-    sp = tm__fb_sec(xs, ys, lo, k - 1);
-    sn = tm__fb_sec(xs, ys, lo, k);
+        return engine__fb_edge(engine__fb_sec(xs, ys, lo, n - 2), engine__fb_sec(xs, ys, lo, n - 3), xs[n - 1] - xs[n - 2], xs[n - 1] - xs[n - 3], 2 * xs[n - 1] - xs[n - 3] - xs[n - 2]);
+    sp = engine__fb_sec(xs, ys, lo, k - 1);
+    sn = engine__fb_sec(xs, ys, lo, k);
     if (sp * sn <= 0)
         return 0;
     return 3 * (xs[k + 1] - xs[k - 1]) /
            ((2 * xs[k + 1] - xs[k - 1] - xs[k]) / sp + (xs[k + 1] + xs[k] - 2 * xs[k - 1]) / sn);
 }
 
-static double tm__hermite(const double *xs, int n, const double *ys, int lo, int i, double x)
+static double engine__hermite(const double *xs, int n, const double *ys, int lo, int i, double x)
 {
     double y0 = ys[i - lo], y1 = ys[i + 1 - lo], d0, d1, h, dy, a2, a3, dx;
     if (x == xs[i])
         return y0;
     if (x == xs[i + 1])
         return y1;
-    d0 = tm__fb_slope(xs, n, ys, lo, i);
-    d1 = tm__fb_slope(xs, n, ys, lo, i + 1);
+    d0 = engine__fb_slope(xs, n, ys, lo, i);
+    d1 = engine__fb_slope(xs, n, ys, lo, i + 1);
     h = xs[i + 1] - xs[i];
     dy = y1 - y0;
     a2 = (3 * dy - (2 * d0 + d1) * h) / h / h;
@@ -1434,7 +1434,7 @@ static double tm__hermite(const double *xs, int n, const double *ys, int lo, int
 }
 
 /* The monotone interpolant along axis a and the axes inside it. */
-static double tm__cubic(const tm__grid *g, int a, int off, const double *q, const int *seg)
+static double engine__cubic(const engine__grid *g, int a, int off, const double *q, const int *seg)
 {
     const double *xs;
     double ys[4];
@@ -1448,15 +1448,15 @@ static double tm__cubic(const tm__grid *g, int a, int off, const double *q, cons
     lo = i - 1 > 0 ? i - 1 : 0;
     hi = i + 2 < g->len[a] - 1 ? i + 2 : g->len[a] - 1;
     for (k = lo; k <= hi; k++)
-        ys[k - lo] = tm__cubic(g, a + 1, off + k * g->stride[a], q, seg);
-    return tm__hermite(xs, g->len[a], ys, lo, i, q[a]);
+        ys[k - lo] = engine__cubic(g, a + 1, off + k * g->stride[a], q, seg);
+    return engine__hermite(xs, g->len[a], ys, lo, i, q[a]);
 }
 `
 
 const cGridAtCode = `
 /* The grid at (altitude, temperature, Mach), clamped to its edges; the
    clamped axes are stored in *clamped. */
-static double tm__grid_at(const tm__grid *g, double q0, double q1, double q2, uint32_t *clamped)
+static double engine__grid_at(const engine__grid *g, double q0, double q1, double q2, uint32_t *clamped)
 {
     double q[3], f[3] = {0, 0, 0};
     int seg[3] = {0, 0, 0}, s[3] = {0, 0, 0};
@@ -1477,7 +1477,7 @@ static double tm__grid_at(const tm__grid *g, double q0, double q1, double q2, ui
             x = xs[last];
             cl |= 1u << a;
         }
-        i = tm__segment(xs, g->len[a], x);
+        i = engine__segment(xs, g->len[a], x);
         seg[a] = i;
         q[a] = x;
         base += i * g->stride[a];
@@ -1492,12 +1492,12 @@ const cGridAtTail = `    v = g->values + base;
     case 0:
         return v[0];
     case 1:
-        return tm__lerp(v[0], v[s[0]], f[0]);
+        return engine__lerp(v[0], v[s[0]], f[0]);
     case 2:
-        return tm__lerp(tm__lerp(v[0], v[s[1]], f[1]), tm__lerp(v[s[0]], v[s[0] + s[1]], f[1]), f[0]);
+        return engine__lerp(engine__lerp(v[0], v[s[1]], f[1]), engine__lerp(v[s[0]], v[s[0] + s[1]], f[1]), f[0]);
     }
-    return tm__lerp(tm__lerp(tm__lerp(v[0], v[s[2]], f[2]), tm__lerp(v[s[1]], v[s[1] + s[2]], f[2]), f[1]),
-                    tm__lerp(tm__lerp(v[s[0]], v[s[0] + s[2]], f[2]), tm__lerp(v[s[0] + s[1]], v[s[0] + s[1] + s[2]], f[2]), f[1]),
+    return engine__lerp(engine__lerp(engine__lerp(v[0], v[s[2]], f[2]), engine__lerp(v[s[1]], v[s[1] + s[2]], f[2]), f[1]),
+                    engine__lerp(engine__lerp(v[s[0]], v[s[0] + s[2]], f[2]), engine__lerp(v[s[0] + s[1]], v[s[0] + s[1] + s[2]], f[2]), f[1]),
                     f[0]);
 }
 `
@@ -1507,33 +1507,33 @@ const cGridAtTail = `    v = g->values + base;
 const cAtmosCode = `
 /* ---- standard atmosphere (thrustmap/atmos) and conditions ---- */
 
-#define TM__FT_TO_M (%s)
-#define TM__KELVIN (%s)
-#define TM__MIN_ALT_FT (%s)
-#define TM__MAX_ALT_FT (%s)
+#define ENGINE__FT_TO_M (%s)
+#define ENGINE__KELVIN (%s)
+#define ENGINE__MIN_ALT_FT (%s)
+#define ENGINE__MAX_ALT_FT (%s)
 
 /* ISA temperature, deg C, at a pressure altitude inside the model. */
-static double tm__isa_c(double alt_ft)
+static double engine__isa_c(double alt_ft)
 {
-    double h = alt_ft * TM__FT_TO_M;
+    double h = alt_ft * ENGINE__FT_TO_M;
     if (h >= 20000.0)
-        return 216.65 + 0.001 * (h - 20000.0) - TM__KELVIN;
+        return 216.65 + 0.001 * (h - 20000.0) - ENGINE__KELVIN;
     if (h >= 11000.0)
-        return 216.65 + 0.0 * (h - 11000.0) - TM__KELVIN;
-    return 288.15 + -0.0065 * (h - 0.0) - TM__KELVIN;
+        return 216.65 + 0.0 * (h - 11000.0) - ENGINE__KELVIN;
+    return 288.15 + -0.0065 * (h - 0.0) - ENGINE__KELVIN;
 }
 
-static int tm__check(const tm_conditions *c)
+static int engine__check(const engine_conditions *c)
 {
     if (!isfinite(c->alt_ft) || !isfinite(c->oat_c) || !isfinite(c->mach) || (c->assumed_set && !isfinite(c->assumed_c)))
-        return TM_ERR_CONDITIONS;
-    if (c->alt_ft < TM__MIN_ALT_FT || c->alt_ft > TM__MAX_ALT_FT)
-        return TM_ERR_CONDITIONS;
+        return ENGINE_ERR_CONDITIONS;
+    if (c->alt_ft < ENGINE__MIN_ALT_FT || c->alt_ft > ENGINE__MAX_ALT_FT)
+        return ENGINE_ERR_CONDITIONS;
     if (c->mach < 0 || c->mach > 5)
-        return TM_ERR_CONDITIONS;
-    if (c->oat_c <= -TM__KELVIN || (c->assumed_set && c->assumed_c <= -TM__KELVIN))
-        return TM_ERR_CONDITIONS;
-    return TM_OK;
+        return ENGINE_ERR_CONDITIONS;
+    if (c->oat_c <= -ENGINE__KELVIN || (c->assumed_set && c->assumed_c <= -ENGINE__KELVIN))
+        return ENGINE_ERR_CONDITIONS;
+    return ENGINE_OK;
 }
 `
 
@@ -1541,31 +1541,31 @@ const cBasisCode = `
 /* ---- ratings (thrustmap/target.go) ---- */
 
 /* An OAT in the rating's temperature basis. */
-static double tm__basis_temp(int basis, double oat, double mach, double isa)
+static double engine__basis_temp(int basis, double oat, double mach, double isa)
 {
     switch (basis) {
     case 1:
-        return (oat + TM__KELVIN) * (1 + 0.2 * mach * mach) - TM__KELVIN;
+        return (oat + ENGINE__KELVIN) * (1 + 0.2 * mach * mach) - ENGINE__KELVIN;
     case 2:
         return oat - isa;
     }
     return oat;
 }
 
-static double tm__base(const tm__rating *r, double alt, double oat, double mach, double isa, uint32_t *clamped)
+static double engine__base(const engine__rating *r, double alt, double oat, double mach, double isa, uint32_t *clamped)
 {
-    return tm__grid_at(&tm__grids[r->table], alt, tm__basis_temp(r->basis, oat, mach, isa), mach, clamped);
+    return engine__grid_at(&engine__grids[r->table], alt, engine__basis_temp(r->basis, oat, mach, isa), mach, clamped);
 }
 
 /* The corrections of the bleeds on in c, adding clamped axes to *cl. */
-static double tm__bleed_correction(const tm__rating *r, const tm_conditions *c, double isa, uint32_t *cl)
+static double engine__bleed_correction(const engine__rating *r, const engine_conditions *c, double isa, uint32_t *cl)
 {
     double sum = 0.0;
     int i;
     if (c->bleeds == 0)
         return 0;
     for (i = 0; i < r->corr_n; i++) {
-        const tm__correction *k = &tm__corrections[r->corr_first + i];
+        const engine__correction *k = &engine__corrections[r->corr_first + i];
         uint32_t gc = 0;
         if (((c->bleeds >> k->bleed) & 1u) == 0)
             continue;
@@ -1573,7 +1573,7 @@ static double tm__bleed_correction(const tm__rating *r, const tm_conditions *c, 
             sum += k->delta;
             continue;
         }
-        sum += tm__grid_at(&tm__grids[k->grid], c->alt_ft, tm__basis_temp(r->basis, c->oat_c, c->mach, isa), c->mach, &gc);
+        sum += engine__grid_at(&engine__grids[k->grid], c->alt_ft, engine__basis_temp(r->basis, c->oat_c, c->mach, isa), c->mach, &gc);
         *cl |= gc;
     }
     return sum;
@@ -1582,10 +1582,10 @@ static double tm__bleed_correction(const tm__rating *r, const tm_conditions *c, 
 
 const cLimitCode = `
 /* The redline ([limits] max). */
-static double tm__limit(double v, uint32_t *flags)
+static double engine__limit(double v, uint32_t *flags)
 {
     if (v > %s) {
-        *flags = TM_FLAG_LIMITED;
+        *flags = ENGINE_FLAG_LIMITED;
         return %s;
     }
     *flags = 0;
@@ -1595,7 +1595,7 @@ static double tm__limit(double v, uint32_t *flags)
 
 const cNoLimitCode = `
 /* No redline ([limits] max) is set. */
-static double tm__limit(double v, uint32_t *flags)
+static double engine__limit(double v, uint32_t *flags)
 {
     *flags = 0;
     return v;
@@ -1604,22 +1604,22 @@ static double tm__limit(double v, uint32_t *flags)
 
 const cPlainCode = `
 /* The rating at checked conditions with corrections and redline, no reduction. */
-static double tm__plain(const tm__rating *r, const tm_conditions *c, uint32_t *flags, uint32_t *clamped)
+static double engine__plain(const engine__rating *r, const engine_conditions *c, uint32_t *flags, uint32_t *clamped)
 {
     double isa = NAN, v;
     uint32_t cl = 0;
     if (r->needs_isa)
-        isa = tm__isa_c(c->alt_ft);
-    v = tm__base(r, c->alt_ft, c->oat_c, c->mach, isa, &cl);
+        isa = engine__isa_c(c->alt_ft);
+    v = engine__base(r, c->alt_ft, c->oat_c, c->mach, isa, &cl);
     if (c->bleeds != 0)
-        v += tm__bleed_correction(r, c, isa, &cl);
+        v += engine__bleed_correction(r, c, isa, &cl);
     *clamped = cl;
-    return tm__limit(v, flags);
+    return engine__limit(v, flags);
 }
 `
 
 const cInterp1Code = `
-static double tm__interp1(const double *xs, const double *ys, int n, double x)
+static double engine__interp1(const double *xs, const double *ys, int n, double x)
 {
     int i = 0;
     double f;
@@ -1636,7 +1636,7 @@ static double tm__interp1(const double *xs, const double *ys, int n, double x)
 
 const cCornerHead = `
 /* The flat-rating corner as an OAT; 0 when the rating declares none. */
-static int tm__corner(const tm__rating *r, double alt, double isa, double *out)
+static int engine__corner(const engine__rating *r, double alt, double isa, double *out)
 {
     switch (r->corner) {
     case 1:
@@ -1651,18 +1651,18 @@ const cCornerTail = `    }
 `
 
 const cReduceCode = `
-static double tm__thrust_at(const tm__rating *r, double alt, double oat, double mach, double isa)
+static double engine__thrust_at(const engine__rating *r, double alt, double oat, double mach, double isa)
 {
     uint32_t cl = 0;
-    return tm__grid_at(&tm__grids[r->thrust], alt, tm__basis_temp(r->basis, oat, mach, isa), mach, &cl);
+    return engine__grid_at(&engine__grids[r->thrust], alt, engine__basis_temp(r->basis, oat, mach, isa), mach, &cl);
 }
 
 /* An OAT from a temperature in the rating's basis. */
-static double tm__oat_of(int basis, double t, double mach, double isa)
+static double engine__oat_of(int basis, double t, double mach, double isa)
 {
     switch (basis) {
     case 1:
-        return (t + TM__KELVIN) / (1 + 0.2 * mach * mach) - TM__KELVIN;
+        return (t + ENGINE__KELVIN) / (1 + 0.2 * mach * mach) - ENGINE__KELVIN;
     case 2:
         return t + isa;
     }
@@ -1673,28 +1673,28 @@ static double tm__oat_of(int basis, double t, double mach, double isa)
    given thrust(lo) >= lim > thrust(hi): the thrust grid's temperature nodes
    are walked down from hi to the last crossing, which is solved exactly in
    a linear grid and by bisection in a monotone one. */
-static double tm__largest_meeting(const tm__rating *r, double lim, double alt, double lo, double hi, double mach, double isa)
+static double engine__largest_meeting(const engine__rating *r, double lim, double alt, double lo, double hi, double mach, double isa)
 {
-    const tm__grid *g = &tm__grids[r->thrust];
+    const engine__grid *g = &engine__grids[r->thrust];
     double top = hi, f_lo, f_top;
     int i;
     for (i = g->len[1] - 1; i >= 0; i--) {
-        double t = tm__oat_of(r->basis, g->axis[1][i], mach, isa);
+        double t = engine__oat_of(r->basis, g->axis[1][i], mach, isa);
         if (t >= top)
             continue;
         if (t <= lo)
             break;
-        if (tm__thrust_at(r, alt, t, mach, isa) >= lim) {
+        if (engine__thrust_at(r, alt, t, mach, isa) >= lim) {
             lo = t;
             break;
         }
         top = t;
     }
-    f_lo = tm__thrust_at(r, alt, lo, mach, isa);
-    f_top = tm__thrust_at(r, alt, top, mach, isa);
+    f_lo = engine__thrust_at(r, alt, lo, mach, isa);
+    f_top = engine__thrust_at(r, alt, top, mach, isa);
     if (g->method == 0 && f_lo != f_top) {
         double t = lo + (lim - f_lo) / (f_top - f_lo) * (top - lo);
-        while (tm__thrust_at(r, alt, t, mach, isa) < lim && t > lo)
+        while (engine__thrust_at(r, alt, t, mach, isa) < lim && t > lo)
             t = nextafter(t, lo);
         return t;
     }
@@ -1702,7 +1702,7 @@ static double tm__largest_meeting(const tm__rating *r, double lim, double alt, d
         double mid = (lo + top) / 2;
         if (mid == lo || mid == top)
             break;
-        if (tm__thrust_at(r, alt, mid, mach, isa) >= lim)
+        if (engine__thrust_at(r, alt, mid, mach, isa) >= lim)
             lo = mid;
         else
             top = mid;
@@ -1711,7 +1711,7 @@ static double tm__largest_meeting(const tm__rating *r, double lim, double alt, d
 }
 
 /* Go's built-in min of two float64s. */
-static double tm__min_builtin(double x, double y)
+static double engine__min_builtin(double x, double y)
 {
     if (isnan(x) || isnan(y))
         return NAN;
@@ -1721,18 +1721,18 @@ static double tm__min_builtin(double x, double y)
 }
 
 /* The tolerance of rule 1's temperature comparisons, degrees C. */
-#define TM__TEMP_TOL %s
+#define ENGINE__TEMP_TOL %s
 
 /* Rule 1 at assumed temperature ta: no reduction at or below the OAT, nor at
    or below the corner; records the reason and returns 1 when it acts. */
-static int tm__full_rating(double ta, double oat, double corner, int has_corner, tm_result *res)
+static int engine__full_rating(double ta, double oat, double corner, int has_corner, engine_result *res)
 {
-    if (ta <= oat + TM__TEMP_TOL) {
-        res->reasons |= TM_REASON_TA_NOT_ABOVE_OAT;
+    if (ta <= oat + ENGINE__TEMP_TOL) {
+        res->reasons |= ENGINE_REASON_TA_NOT_ABOVE_OAT;
         return 1;
     }
-    if (has_corner && ta <= corner + TM__TEMP_TOL) {
-        res->reasons |= TM_REASON_TA_BELOW_CORNER;
+    if (has_corner && ta <= corner + ENGINE__TEMP_TOL) {
+        res->reasons |= ENGINE_REASON_TA_BELOW_CORNER;
         return 1;
     }
     return 0;
@@ -1740,66 +1740,66 @@ static int tm__full_rating(double ta, double oat, double corner, int has_corner,
 
 /* The assumed-temperature method (FAA AC 25-13), rule by rule: the table
    value to use before bleed corrections; full is the value at the OAT. */
-static double tm__reduce(const tm__rating *r, const tm_conditions *c, double isa, double full, tm_result *res)
+static double engine__reduce(const engine__rating *r, const engine_conditions *c, double isa, double full, engine_result *res)
 {
     double alt = c->alt_ft, oat = c->oat_c, mach = c->mach, ta = c->assumed_c, corner = 0, v;
     uint32_t cl = 0;
-    int has_corner = tm__corner(r, alt, isa, &corner);
+    int has_corner = engine__corner(r, alt, isa, &corner);
     res->evaluated = 1;
     res->assumed_c = c->assumed_c;
     res->effective_c = oat;
     res->thrust_checked = r->thrust >= 0;
     /* Rule 1: no reduction at or below the OAT, nor at or below the corner. */
-    if (tm__full_rating(ta, oat, corner, has_corner, res))
+    if (engine__full_rating(ta, oat, corner, has_corner, res))
         return full;
     /* Rule 2: no higher than the maximum assumed temperature; rule 1 then
        applies again at the temperature cut to. */
     if (ta > %s) {
         ta = %s;
-        res->reasons |= TM_REASON_TA_ABOVE_MAX;
-        if (tm__full_rating(ta, oat, corner, has_corner, res))
+        res->reasons |= ENGINE_REASON_TA_ABOVE_MAX;
+        if (engine__full_rating(ta, oat, corner, has_corner, res))
             return full;
     }
     /* Rule 3: the thrust reduction limit. */
     if (r->thrust < 0) {
-        res->reasons |= TM_REASON_REDUCTION_NOT_CHECKED;
+        res->reasons |= ENGINE_REASON_REDUCTION_NOT_CHECKED;
     } else {
-        double thrust_full = tm__thrust_at(r, alt, oat, mach, isa);
+        double thrust_full = engine__thrust_at(r, alt, oat, mach, isa);
         double lim = (1 - %s / 100) * thrust_full;
-        if (tm__thrust_at(r, alt, ta, mach, isa) < lim) {
-            ta = tm__largest_meeting(r, lim, alt, oat, ta, mach, isa);
-            res->reasons |= TM_REASON_REDUCTION_LIMITED;
+        if (engine__thrust_at(r, alt, ta, mach, isa) < lim) {
+            ta = engine__largest_meeting(r, lim, alt, oat, ta, mach, isa);
+            res->reasons |= ENGINE_REASON_REDUCTION_LIMITED;
         }
         if (thrust_full > 0)
-            res->thrust_reduction_pct = 100 * (1 - tm__thrust_at(r, alt, ta, mach, isa) / thrust_full);
+            res->thrust_reduction_pct = 100 * (1 - engine__thrust_at(r, alt, ta, mach, isa) / thrust_full);
     }
     /* Rule 4: the value at the effective temperature, never above full. */
     res->effective_c = ta;
     res->applied = 1;
-    v = tm__base(r, alt, ta, mach, isa, &cl);
+    v = engine__base(r, alt, ta, mach, isa, &cl);
     res->clamped |= cl;
 `
 
 const cTargetHead = `
-static int tm__target_r(const tm__rating *r, const tm_conditions *c, tm_result *res)
+static int engine__target_r(const engine__rating *r, const engine_conditions *c, engine_result *res)
 {
     double isa = NAN, full, value, corr;
     uint32_t cl = 0, f = 0;
     memset(res, 0, sizeof *res);
-    if (tm__check(c) != TM_OK)
-        return TM_ERR_CONDITIONS;
+    if (engine__check(c) != ENGINE_OK)
+        return ENGINE_ERR_CONDITIONS;
     if (r->needs_isa || c->assumed_set)
-        isa = tm__isa_c(c->alt_ft);
-    full = tm__base(r, c->alt_ft, c->oat_c, c->mach, isa, &cl);
+        isa = engine__isa_c(c->alt_ft);
+    full = engine__base(r, c->alt_ft, c->oat_c, c->mach, isa, &cl);
     res->clamped = cl;
     value = full;
 `
 
-const cTargetTail = `    corr = tm__bleed_correction(r, c, isa, &res->clamped);
-    res->value = tm__limit(value + corr, &res->flags);
+const cTargetTail = `    corr = engine__bleed_correction(r, c, isa, &res->clamped);
+    res->value = engine__limit(value + corr, &res->flags);
     if (res->evaluated)
-        res->value_full = tm__limit(full + corr, &f);
-    return TM_OK;
+        res->value_full = engine__limit(full + corr, &f);
+    return ENGINE_OK;
 }
 `
 
@@ -1807,24 +1807,24 @@ const cExprHead = `
 /* ---- gate expressions (thrustmap/expr.go, fastexpr.go) ---- */
 
 typedef struct {
-    tm_conditions cond;
+    engine_conditions cond;
     double tla, tat, isa_dev, assumed_temp;
     int err; /* a function failed: the expression fails */
-} tm__ctx;
+} engine__ctx;
 
-static void tm__ctx_set(tm__ctx *x, const tm_conditions *c, double tla)
+static void engine__ctx_set(engine__ctx *x, const engine_conditions *c, double tla)
 {
     x->cond = *c;
     x->tla = tla;
-    x->tat = tm__basis_temp(1, c->oat_c, c->mach, 0);
-    x->isa_dev = c->oat_c - tm__isa_c(c->alt_ft);
+    x->tat = engine__basis_temp(1, c->oat_c, c->mach, 0);
+    x->isa_dev = c->oat_c - engine__isa_c(c->alt_ft);
     x->assumed_temp = c->assumed_set ? c->assumed_c : 0;
     x->err = 0;
 }
 `
 
 const cFail = `
-static double tm__fail(tm__ctx *x)
+static double engine__fail(engine__ctx *x)
 {
     x->err = 1;
     return NAN;
@@ -1833,7 +1833,7 @@ static double tm__fail(tm__ctx *x)
 
 const cMathMin = `
 /* Go's math.Min. */
-static double tm__math_min(double x, double y)
+static double engine__math_min(double x, double y)
 {
     if (isinf(x) && x < 0)
         return x;
@@ -1849,7 +1849,7 @@ static double tm__math_min(double x, double y)
 
 const cMathMax = `
 /* Go's math.Max. */
-static double tm__math_max(double x, double y)
+static double engine__math_max(double x, double y)
 {
     if (isinf(x) && x > 0)
         return x;
@@ -1865,55 +1865,55 @@ static double tm__math_max(double x, double y)
 
 const cERating = `
 /* rating("name"): corrections included, no reduction. */
-static double tm__e_rating(tm__ctx *x, int r)
+static double engine__e_rating(engine__ctx *x, int r)
 {
     uint32_t f, cl;
-    return tm__plain(&tm__ratings[r], &x->cond, &f, &cl);
+    return engine__plain(&engine__ratings[r], &x->cond, &f, &cl);
 }
 `
 
 const cERatingAt = `
 /* rating_at("name", alt, oat) */
-static double tm__e_rating_at(tm__ctx *x, int r, double alt, double oat)
+static double engine__e_rating_at(engine__ctx *x, int r, double alt, double oat)
 {
-    tm_conditions c = x->cond;
+    engine_conditions c = x->cond;
     uint32_t f, cl;
     c.alt_ft = alt;
     c.oat_c = oat;
-    if (tm__check(&c) != TM_OK)
-        return tm__fail(x);
-    return tm__plain(&tm__ratings[r], &c, &f, &cl);
+    if (engine__check(&c) != ENGINE_OK)
+        return engine__fail(x);
+    return engine__plain(&engine__ratings[r], &c, &f, &cl);
 }
 `
 
 const cEAssumed = `
 /* assumed("name"): the target with the reduction at the assumed temperature. */
-static double tm__e_assumed(tm__ctx *x, int r)
+static double engine__e_assumed(engine__ctx *x, int r)
 {
-    tm_result res;
-    if (tm__target_r(&tm__ratings[r], &x->cond, &res) != TM_OK)
-        return tm__fail(x);
+    engine_result res;
+    if (engine__target_r(&engine__ratings[r], &x->cond, &res) != ENGINE_OK)
+        return engine__fail(x);
     return res.value;
 }
 `
 
 const cEISATemp = `
 /* isa_temp(alt) */
-static double tm__e_isa_temp(tm__ctx *x, double alt)
+static double engine__e_isa_temp(engine__ctx *x, double alt)
 {
-    if (!isfinite(alt) || alt < TM__MIN_ALT_FT || alt > TM__MAX_ALT_FT)
-        return tm__fail(x);
-    return tm__isa_c(alt);
+    if (!isfinite(alt) || alt < ENGINE__MIN_ALT_FT || alt > ENGINE__MAX_ALT_FT)
+        return engine__fail(x);
+    return engine__isa_c(alt);
 }
 `
 
 const cExprNumber = `
 /* A target: fails on a function's failure or a result that is not finite. */
-static int tm__number(const tm_conditions *c, double (*fn)(tm__ctx *), double tla, double *v)
+static int engine__number(const engine_conditions *c, double (*fn)(engine__ctx *), double tla, double *v)
 {
-    tm__ctx x;
+    engine__ctx x;
     double r;
-    tm__ctx_set(&x, c, tla);
+    engine__ctx_set(&x, c, tla);
     r = fn(&x);
     if (x.err || !isfinite(r))
         return -1;
@@ -1924,11 +1924,11 @@ static int tm__number(const tm_conditions *c, double (*fn)(tm__ctx *), double tl
 
 const cExprTruth = `
 /* A when. */
-static int tm__truth(const tm_conditions *c, int (*fn)(tm__ctx *), double tla, int *b)
+static int engine__truth(const engine_conditions *c, int (*fn)(engine__ctx *), double tla, int *b)
 {
-    tm__ctx x;
+    engine__ctx x;
     int r;
-    tm__ctx_set(&x, c, tla);
+    engine__ctx_set(&x, c, tla);
     r = fn(&x);
     if (x.err)
         return -1;
@@ -1942,9 +1942,9 @@ typedef struct {
     const char *name;
     double tla;
     int rating; /* -1: none */
-    double (*target)(tm__ctx *);
-    int (*when)(tm__ctx *);
-} tm__gate;
+    double (*target)(engine__ctx *);
+    int (*when)(engine__ctx *);
+} engine__gate;
 `
 
 const cGateType = `
@@ -1952,20 +1952,20 @@ typedef struct {
     const char *name;
     double tla;
     int rating;
-} tm__gate;
+} engine__gate;
 `
 
 const cStateCode = `
 /* ---- lever commands (thrustmap/model.go) ---- */
 
-static int tm__same_cond(const tm_conditions *a, const tm_conditions *b)
+static int engine__same_cond(const engine_conditions *a, const engine_conditions *b)
 {
     return a->alt_ft == b->alt_ft && a->oat_c == b->oat_c && a->mach == b->mach && a->bleeds == b->bleeds &&
            !a->on_ground == !b->on_ground && !a->assumed_set == !b->assumed_set && a->assumed_c == b->assumed_c;
 }
 
 /* Drops the gate values worked out at other conditions. */
-static void tm__invalidate(tm_lever_state *s, const tm_conditions *c)
+static void engine__invalidate(engine_lever_state *s, const engine_conditions *c)
 {
     s->cond = *c;
     s->when_failed = 0;
@@ -1975,10 +1975,10 @@ static void tm__invalidate(tm_lever_state *s, const tm_conditions *c)
 
 const cOwnHead = `
 /* Gate i's own target, worked out once per conditions. */
-static tm__gate_eval *tm__own(tm_lever_state *s, int i, double tla)
+static engine__gate_eval *engine__own(engine_lever_state *s, int i, double tla)
 {
-    tm__gate_eval *e = &s->gates[i];
-    const tm__gate *g = &tm__gates[i];
+    engine__gate_eval *e = &s->gates[i];
+    const engine__gate *g = &engine__gates[i];
     uint32_t bit = 1u << i, f = 0;
     if (s->own_known & bit)
         return e;
@@ -1988,12 +1988,12 @@ static tm__gate_eval *tm__own(tm_lever_state *s, int i, double tla)
 
 const cOwnExpr = `    if (g->target) {
         double v;
-        if (tm__number(&s->cond, g->target, tla, &v) == 0) {
-            e->own = tm__limit(v, &e->own_flags);
+        if (engine__number(&s->cond, g->target, tla, &v) == 0) {
+            e->own = engine__limit(v, &e->own_flags);
             e->has_own = 1;
             return e;
         }
-        e->own_flags = TM_FLAG_FALLBACK;
+        e->own_flags = ENGINE_FLAG_FALLBACK;
         if (g->rating < 0) {
             e->own = s->last;
             e->has_own = s->has_last;
@@ -2003,7 +2003,7 @@ const cOwnExpr = `    if (g->target) {
 `
 
 const cOwnTail = `    (void)tla;
-    e->own = tm__plain(&tm__ratings[g->rating], &s->cond, &f, &e->own_clamp);
+    e->own = engine__plain(&engine__ratings[g->rating], &s->cond, &f, &e->own_clamp);
     e->has_own = 1;
     e->own_flags |= f;
     return e;
@@ -2013,17 +2013,17 @@ const cOwnTail = `    (void)tla;
 const cActiveHead = `
 /* Whether gate i takes part at the state's conditions: its when holds and
    it has a target (its own, its fallback rating, or the last command). */
-static int tm__active(tm_lever_state *s, int i, double tla)
+static int engine__active(engine_lever_state *s, int i, double tla)
 {
 `
 
 const cActiveWhen = `    uint32_t bit = 1u << i;
-    const tm__gate *g = &tm__gates[i];
+    const engine__gate *g = &engine__gates[i];
     if (g->when) {
         if ((s->when_known & bit) == 0) {
             int ok = 0;
             s->when_known |= bit;
-            if (tm__truth(&s->cond, g->when, tla, &ok) != 0)
+            if (engine__truth(&s->cond, g->when, tla, &ok) != 0)
                 s->when_failed = 1; /* the gate drops out and every command says so */
             if (ok)
                 s->when_true |= bit;
@@ -2037,7 +2037,7 @@ const cActiveWhen = `    uint32_t bit = 1u << i;
 
 const cActiveTarget = `    if (g->target == 0 || g->rating >= 0)
         return 1;
-    return tm__own(s, i, tla)->has_own;
+    return engine__own(s, i, tla)->has_own;
 }
 `
 
@@ -2045,29 +2045,29 @@ const cActiveTarget = `    if (g->target == 0 || g->rating >= 0)
 const cEffectiveCode = `
 /* Gate gi (active) with its effective target: its own, raised to the
    effective target of the active gate next nearer idle. */
-static const tm__gate_eval *tm__effective(tm_lever_state *s, int gi, double tla)
+static const engine__gate_eval *engine__effective(engine_lever_state *s, int gi, double tla)
 {
-    tm__gate_eval *e = &s->gates[gi];
+    engine__gate_eval *e = &s->gates[gi];
     int base = %d, step = -1, prev = -1, i;
     if (s->eff_known & (1u << gi))
         return e;
     if (gi < base)
         step = 1;
     for (i = gi + step; i >= 0 && ((step < 0 && i >= base) || (step > 0 && i <= base)); i += step) {
-        if (((TM__ALWAYS >> i) & 1u) != 0 || tm__active(s, i, tla)) {
+        if (((ENGINE__ALWAYS >> i) & 1u) != 0 || engine__active(s, i, tla)) {
             prev = i;
             break;
         }
     }
-    tm__own(s, gi, tla);
+    engine__own(s, gi, tla);
     e->eff = e->own;
     e->flags = e->own_flags;
     e->clamp = e->own_clamp;
     if (prev >= 0) {
-        const tm__gate_eval *p = tm__effective(s, prev, tla);
+        const engine__gate_eval *p = engine__effective(s, prev, tla);
         if (p->eff > e->own) {
             e->eff = p->eff;
-            e->flags = p->flags | TM_FLAG_RAISED;
+            e->flags = p->flags | ENGINE_FLAG_RAISED;
             e->clamp = p->clamp;
         }
     }
@@ -2078,42 +2078,42 @@ static const tm__gate_eval *tm__effective(tm_lever_state *s, int gi, double tla)
 
 const cCommandHead = `
 /* The gate logic at lever angle tla with geometry gi; out is zero. */
-static int tm__command_at(tm_lever_state *s, int gi, double tla, uint32_t cl, const tm_conditions *c, tm_command *out)
+static int engine__command_at(engine_lever_state *s, int gi, double tla, uint32_t cl, const engine_conditions *c, engine_command *out)
 {
-    const tm__geom *geo = &tm__geoms[gi];
-    const tm__gate_eval *e;
+    const engine__geom *geo = &engine__geoms[gi];
+    const engine__gate_eval *e;
     int zone = -1, lo = -1, hi = -1, rep, i;
     if (s->geom_plus1 != gi + 1) {
-        if (tm__check(c) != TM_OK)
-            return TM_ERR_CONDITIONS;
+        if (engine__check(c) != ENGINE_OK)
+            return ENGINE_ERR_CONDITIONS;
         s->geom_plus1 = gi + 1;
         s->gate_plus1 = 0;
         s->has_last = 0;
-        tm__invalidate(s, c);
-    } else if (!tm__same_cond(&s->cond, c)) {
-        if (tm__check(c) != TM_OK)
-            return TM_ERR_CONDITIONS;
-        tm__invalidate(s, c);
+        engine__invalidate(s, c);
+    } else if (!engine__same_cond(&s->cond, c)) {
+        if (engine__check(c) != ENGINE_OK)
+            return ENGINE_ERR_CONDITIONS;
+        engine__invalidate(s, c);
 `
 
 const cCommandBody = `    }
-    if (tla < TM_TLA_MIN_DEG) {
-        tla = TM_TLA_MIN_DEG;
-        cl |= TM_CLAMP_LEVER;
-    } else if (tla > TM_TLA_MAX_DEG) {
-        tla = TM_TLA_MAX_DEG;
-        cl |= TM_CLAMP_LEVER;
+    if (tla < ENGINE_TLA_MIN_DEG) {
+        tla = ENGINE_TLA_MIN_DEG;
+        cl |= ENGINE_CLAMP_LEVER;
+    } else if (tla > ENGINE_TLA_MAX_DEG) {
+        tla = ENGINE_TLA_MAX_DEG;
+        cl |= ENGINE_CLAMP_LEVER;
     }
     out->tla_deg = tla;
     out->clamped = cl;
     out->gate = out->lower = out->upper = -1;
 
     /* The capture zone the lever is in, or the active gates either side. */
-    for (i = 0; i < TM_NUM_GATES; i++) {
+    for (i = 0; i < ENGINE_NUM_GATES; i++) {
         double d;
-        if (((TM__ALWAYS >> i) & 1u) == 0 && !tm__active(s, i, tla))
+        if (((ENGINE__ALWAYS >> i) & 1u) == 0 && !engine__active(s, i, tla))
             continue;
-        d = tla - tm__gates[i].tla;
+        d = tla - engine__gates[i].tla;
         if (fabs(d) <= geo->capture[i]) {
             zone = i;
             break;
@@ -2128,7 +2128,7 @@ const cCommandBody = `    }
 
     /* The reported gate keeps its capture through the hysteresis band. */
     rep = s->gate_plus1 - 1;
-    if (rep >= 0 && (!tm__active(s, rep, tla) || fabs(tla - tm__gates[rep].tla) > geo->capture[rep] + geo->hysteresis[rep]))
+    if (rep >= 0 && (!engine__active(s, rep, tla) || fabs(tla - engine__gates[rep].tla) > geo->capture[rep] + geo->hysteresis[rep]))
         rep = -1;
     if (zone >= 0)
         rep = zone;
@@ -2136,15 +2136,15 @@ const cCommandBody = `    }
     out->gate = rep;
 
     if (zone >= 0) {
-        e = tm__effective(s, zone, tla);
+        e = engine__effective(s, zone, tla);
         out->value = e->eff;
         out->flags = e->flags;
         out->clamped = cl | e->clamp;
     } else if (lo >= 0 && hi >= 0) {
-        double lo_edge = tm__gates[lo].tla + geo->capture[lo];
-        double hi_edge = tm__gates[hi].tla - geo->capture[hi];
+        double lo_edge = engine__gates[lo].tla + geo->capture[lo];
+        double hi_edge = engine__gates[hi].tla - geo->capture[hi];
         double f = (tla - lo_edge) / (hi_edge - lo_edge);
-        const tm__gate_eval *a = tm__effective(s, lo, tla), *b = tm__effective(s, hi, tla);
+        const engine__gate_eval *a = engine__effective(s, lo, tla), *b = engine__effective(s, hi, tla);
         out->value = a->eff + (b->eff - a->eff) * f;
         out->flags = a->flags | b->flags;
         out->clamped = cl | a->clamp | b->clamp;
@@ -2152,121 +2152,121 @@ const cCommandBody = `    }
         out->upper = hi;
         out->fraction = f;
     } else if (lo >= 0) { /* forward of the forwardmost active gate: hold it */
-        e = tm__effective(s, lo, tla);
+        e = engine__effective(s, lo, tla);
         out->value = e->eff;
         out->flags = e->flags;
         out->clamped = cl | e->clamp;
     } else if (hi >= 0) { /* aft of the aftmost active gate */
-        e = tm__effective(s, hi, tla);
+        e = engine__effective(s, hi, tla);
         out->value = e->eff;
         out->flags = e->flags;
         out->clamped = cl | e->clamp;
     } else {
-        return TM_ERR_NO_GATE;
+        return ENGINE_ERR_NO_GATE;
     }
 `
 
 const cInterlock = `        if (!c->on_ground) {
             /* Reverse selected in the air: hold idle. */
-            e = tm__effective(s, TM__IDLE, tla);
+            e = engine__effective(s, ENGINE__IDLE, tla);
             out->value = e->eff;
-            out->flags = e->flags | TM_FLAG_INTERLOCK;
+            out->flags = e->flags | ENGINE_FLAG_INTERLOCK;
             out->clamped = cl | e->clamp;
         }
 `
 
 const cCommandTail = `    if (s->when_failed)
-        out->flags |= TM_FLAG_FALLBACK;
+        out->flags |= ENGINE_FLAG_FALLBACK;
     s->last = out->value;
     s->has_last = 1;
-    return TM_OK;
+    return ENGINE_OK;
 }
 `
 
 const cPublicCode = `
 /* ---- the API ---- */
 
-int tm_rating_index(const char *name)
+int engine_rating_index(const char *name)
 {
     int i;
     if (name == 0)
         return -1;
-    for (i = 0; i < TM_NUM_RATINGS; i++)
-        if (strcmp(tm__ratings[i].name, name) == 0)
+    for (i = 0; i < ENGINE_NUM_RATINGS; i++)
+        if (strcmp(engine__ratings[i].name, name) == 0)
             return i;
     return -1;
 }
 
-const char *tm_rating_name(int rating)
+const char *engine_rating_name(int rating)
 {
-    if (rating < 0 || rating >= TM_NUM_RATINGS)
+    if (rating < 0 || rating >= ENGINE_NUM_RATINGS)
         return "";
-    return tm__ratings[rating].name;
+    return engine__ratings[rating].name;
 }
 
-int tm_bleed_index(const char *name)
+int engine_bleed_index(const char *name)
 {
     int i;
     if (name == 0)
         return -1;
-    for (i = 0; i < TM_NUM_BLEEDS; i++)
-        if (strcmp(tm__bleed_names[i], name) == 0)
+    for (i = 0; i < ENGINE_NUM_BLEEDS; i++)
+        if (strcmp(engine__bleed_names[i], name) == 0)
             return i;
     return -1;
 }
 
-const char *tm_gate_name(int gate)
+const char *engine_gate_name(int gate)
 {
-    if (gate < 0 || gate >= TM_NUM_GATES)
+    if (gate < 0 || gate >= ENGINE_NUM_GATES)
         return "";
-    return tm__gates[gate].name;
+    return engine__gates[gate].name;
 }
 
-int tm_target(int rating, const tm_conditions *c, tm_result *out)
+int engine_target(int rating, const engine_conditions *c, engine_result *out)
 {
-    if (rating < 0 || rating >= TM_NUM_RATINGS) {
+    if (rating < 0 || rating >= ENGINE_NUM_RATINGS) {
         memset(out, 0, sizeof *out);
-        return TM_ERR_RATING;
+        return ENGINE_ERR_RATING;
     }
-    return tm__target_r(&tm__ratings[rating], c, out);
+    return engine__target_r(&engine__ratings[rating], c, out);
 }
 
-void tm_lever_reset(tm_lever_state *s)
+void engine_lever_reset(engine_lever_state *s)
 {
     memset(s, 0, sizeof *s);
 }
 
 /* The first geometry of lever id, as thrustmap's Model looks it up. */
-static int tm__geom_index(int lever)
+static int engine__geom_index(int lever)
 {
     int i;
-    for (i = 0; i <= TM_NUM_LEVERS; i++)
-        if (tm__geoms[i].id == lever)
+    for (i = 0; i <= ENGINE_NUM_LEVERS; i++)
+        if (engine__geoms[i].id == lever)
             return i;
     return -1;
 }
 
-int tm_command_tla(int lever, tm_lever_state *s, double tla_deg, const tm_conditions *c, tm_command *out)
+int engine_command_tla(int lever, engine_lever_state *s, double tla_deg, const engine_conditions *c, engine_command *out)
 {
-    int gi = tm__geom_index(lever);
+    int gi = engine__geom_index(lever);
     memset(out, 0, sizeof *out);
     if (gi < 0)
-        return TM_ERR_LEVER;
+        return ENGINE_ERR_LEVER;
     if (!isfinite(tla_deg))
-        return TM_ERR_INPUT;
-    return tm__command_at(s, gi, tla_deg, 0, c, out);
+        return ENGINE_ERR_INPUT;
+    return engine__command_at(s, gi, tla_deg, 0, c, out);
 }
 `
 
 const cLeverCode = `
 /* A one-axis table (a lever calibration) at x; *clamped: x was beyond it. */
-static double tm__curve_at(const tm__grid *g, double x, int *clamped)
+static double engine__curve_at(const engine__grid *g, double x, int *clamped)
 {
     const double *xs = g->axis[0], *ys = g->values;
     int last = g->len[0] - 1, i;
     if (g->method == 1) {
         uint32_t cl = 0;
-        double v = tm__grid_at(g, x, 0, 0, &cl);
+        double v = engine__grid_at(g, x, 0, 0, &cl);
         *clamped = cl != 0;
         return v;
     }
@@ -2278,103 +2278,103 @@ static double tm__curve_at(const tm__grid *g, double x, int *clamped)
         *clamped = x > xs[last];
         return ys[last];
     }
-    i = tm__segment(xs, g->len[0], x);
+    i = engine__segment(xs, g->len[0], x);
     *clamped = 0;
-    return tm__lerp(ys[i], ys[i + 1], (x - xs[i]) / (xs[i + 1] - xs[i]));
+    return engine__lerp(ys[i], ys[i + 1], (x - xs[i]) / (xs[i + 1] - xs[i]));
 }
 
-int tm_lever_id(int i)
+int engine_lever_id(int i)
 {
-    if (i < 0 || i >= TM_NUM_LEVERS)
-        return TM_NO_LEVER;
-    return tm__geoms[i].id;
+    if (i < 0 || i >= ENGINE_NUM_LEVERS)
+        return ENGINE_NO_LEVER;
+    return engine__geoms[i].id;
 }
 
 /* LeverCalibration.TLA */
-static double tm__raw_tla(const tm__geom *geo, double raw, uint32_t *cl)
+static double engine__raw_tla(const engine__geom *geo, double raw, uint32_t *cl)
 {
     int clamped = 0;
-    double tla = tm__curve_at(&tm__grids[geo->forward], raw, &clamped);
-    *cl = clamped ? TM_CLAMP_RAW : 0;
+    double tla = engine__curve_at(&engine__grids[geo->forward], raw, &clamped);
+    *cl = clamped ? ENGINE_CLAMP_RAW : 0;
     if (raw < geo->raw_min || raw > geo->raw_max)
-        *cl |= TM_CLAMP_DEVICE;
+        *cl |= ENGINE_CLAMP_DEVICE;
     return tla;
 }
 
-static int tm__calibrated(int lever)
+static int engine__calibrated(int lever)
 {
     int i;
-    for (i = 0; i < TM_NUM_LEVERS; i++)
-        if (tm__geoms[i].id == lever)
+    for (i = 0; i < ENGINE_NUM_LEVERS; i++)
+        if (engine__geoms[i].id == lever)
             return i;
     return -1;
 }
 
-int tm_command_raw(int lever, tm_lever_state *s, double raw, const tm_conditions *c, tm_command *out)
+int engine_command_raw(int lever, engine_lever_state *s, double raw, const engine_conditions *c, engine_command *out)
 {
     int gi = s->geom_plus1 - 1;
-    const tm__geom *geo;
+    const engine__geom *geo;
     uint32_t cl = 0;
     double tla;
     memset(out, 0, sizeof *out);
-    if (gi < 0 || tm__geoms[gi].id != lever) {
-        gi = tm__geom_index(lever);
-        if (gi < 0 || !tm__geoms[gi].calibrated)
-            return TM_ERR_LEVER;
+    if (gi < 0 || engine__geoms[gi].id != lever) {
+        gi = engine__geom_index(lever);
+        if (gi < 0 || !engine__geoms[gi].calibrated)
+            return ENGINE_ERR_LEVER;
         s->holding = 0;
     }
-    geo = &tm__geoms[gi];
+    geo = &engine__geoms[gi];
     if (!geo->calibrated)
-        return TM_ERR_LEVER;
+        return ENGINE_ERR_LEVER;
     if (!isfinite(raw))
-        return TM_ERR_INPUT;
+        return ENGINE_ERR_INPUT;
     if (!s->holding || fabs(raw - s->held) > geo->deadband) {
         s->held = raw;
         s->holding = 1;
     }
-    tla = tm__raw_tla(geo, s->held, &cl);
+    tla = engine__raw_tla(geo, s->held, &cl);
     if (raw < geo->raw_min || raw > geo->raw_max)
-        cl |= TM_CLAMP_DEVICE;
-    return tm__command_at(s, gi, tla, cl, c, out);
+        cl |= ENGINE_CLAMP_DEVICE;
+    return engine__command_at(s, gi, tla, cl, c, out);
 }
 
-int tm_raw_to_tla(int lever, double raw, double *tla_deg, uint32_t *clamped)
+int engine_raw_to_tla(int lever, double raw, double *tla_deg, uint32_t *clamped)
 {
-    int i = tm__calibrated(lever);
+    int i = engine__calibrated(lever);
     uint32_t cl = 0;
     if (i < 0)
-        return TM_ERR_LEVER;
+        return ENGINE_ERR_LEVER;
     if (isnan(raw))
-        return TM_ERR_INPUT;
-    *tla_deg = tm__raw_tla(&tm__geoms[i], raw, &cl);
+        return ENGINE_ERR_INPUT;
+    *tla_deg = engine__raw_tla(&engine__geoms[i], raw, &cl);
     if (clamped)
         *clamped = cl;
-    return TM_OK;
+    return ENGINE_OK;
 }
 
-int tm_tla_to_raw(int lever, double tla_deg, double *raw, int *clamped)
+int engine_tla_to_raw(int lever, double tla_deg, double *raw, int *clamped)
 {
-    int i = tm__calibrated(lever), cl = 0, ignore = 0;
-    const tm__geom *geo;
+    int i = engine__calibrated(lever), cl = 0, ignore = 0;
+    const engine__geom *geo;
     double r, lo, hi;
     if (i < 0)
-        return TM_ERR_LEVER;
+        return ENGINE_ERR_LEVER;
     if (isnan(tla_deg))
-        return TM_ERR_INPUT;
-    geo = &tm__geoms[i];
-    r = tm__curve_at(&tm__grids[geo->inverse], tla_deg, &cl);
+        return ENGINE_ERR_INPUT;
+    geo = &engine__geoms[i];
+    r = engine__curve_at(&engine__grids[geo->inverse], tla_deg, &cl);
     if (!geo->monotone || cl) {
         *raw = r;
         if (clamped)
             *clamped = cl;
-        return TM_OK;
+        return ENGINE_OK;
     }
     /* Bisect the monotone forward map between the calibrated ends. */
     lo = geo->raw_lo;
     hi = geo->raw_hi;
     while (hi - lo > 1e-3) {
         double mid = (lo + hi) / 2;
-        double t = tm__curve_at(&tm__grids[geo->forward], mid, &ignore);
+        double t = engine__curve_at(&engine__grids[geo->forward], mid, &ignore);
         if ((t < tla_deg) != (geo->inverted != 0))
             lo = mid;
         else
@@ -2383,6 +2383,6 @@ int tm_tla_to_raw(int lever, double tla_deg, double *raw, int *clamped)
     *raw = (lo + hi) / 2;
     if (clamped)
         *clamped = 0;
-    return TM_OK;
+    return ENGINE_OK;
 }
 `

@@ -243,15 +243,15 @@ func slicesConcat(a []string, b ...string) []string { return append(append([]str
 const cDriver = `#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
-#define TM_HEADER_ONLY
+#define ENGINE_HEADER_ONLY
 #include "model.c"
 
 #define NSTATES 8
-static tm_lever_state states[NSTATES];
+static engine_lever_state states[NSTATES];
 
 static double num(const char *s) { return strtod(s, NULL); }
 
-static void conditions(char **t, tm_conditions *c)
+static void conditions(char **t, engine_conditions *c)
 {
     c->alt_ft = num(t[0]);
     c->oat_c = num(t[1]);
@@ -262,7 +262,7 @@ static void conditions(char **t, tm_conditions *c)
     c->assumed_c = num(t[6]);
 }
 
-static void command(int rc, const tm_command *o)
+static void command(int rc, const engine_command *o)
 {
     if (rc != 0) {
         printf("%d\n", rc);
@@ -281,18 +281,18 @@ int main(int argc, char **argv)
     while (fgets(line, sizeof line, in)) {
         char *t[16], *p;
         int n = 0;
-        tm_conditions c;
-        tm_command o;
+        engine_conditions c;
+        engine_command o;
         for (p = strtok(line, " \n"); p && n < 16; p = strtok(NULL, " \n"))
             t[n++] = p;
         if (n == 0)
             continue;
         switch (t[0][0]) {
         case 'T': {
-            tm_result r;
+            engine_result r;
             int rc;
             conditions(t + 2, &c);
-            rc = tm_target(atoi(t[1]), &c, &r);
+            rc = engine_target(atoi(t[1]), &c, &r);
             if (rc != 0)
                 printf("%d\n", rc);
             else
@@ -303,17 +303,17 @@ int main(int argc, char **argv)
         }
         case 'A':
             conditions(t + 4, &c);
-            command(tm_command_tla(atoi(t[1]), &states[atoi(t[2])], num(t[3]), &c, &o), &o);
+            command(engine_command_tla(atoi(t[1]), &states[atoi(t[2])], num(t[3]), &c, &o), &o);
             break;
-#if TM_NUM_LEVERS > 0
+#if ENGINE_NUM_LEVERS > 0
         case 'R':
             conditions(t + 4, &c);
-            command(tm_command_raw(atoi(t[1]), &states[atoi(t[2])], num(t[3]), &c, &o), &o);
+            command(engine_command_raw(atoi(t[1]), &states[atoi(t[2])], num(t[3]), &c, &o), &o);
             break;
         case 'F': {
             double tla = 0;
             uint32_t cl = 0;
-            int rc = tm_raw_to_tla(atoi(t[1]), num(t[2]), &tla, &cl);
+            int rc = engine_raw_to_tla(atoi(t[1]), num(t[2]), &tla, &cl);
             if (rc != 0)
                 printf("%d\n", rc);
             else
@@ -322,7 +322,7 @@ int main(int argc, char **argv)
         }
         case 'I': {
             double raw = 0;
-            int cl = 0, rc = tm_tla_to_raw(atoi(t[1]), num(t[2]), &raw, &cl);
+            int cl = 0, rc = engine_tla_to_raw(atoi(t[1]), num(t[2]), &raw, &cl);
             if (rc != 0)
                 printf("%d\n", rc);
             else
@@ -330,31 +330,31 @@ int main(int argc, char **argv)
             break;
         }
         case 'L':
-            printf("%d\n", tm_lever_id(atoi(t[1])));
+            printf("%d\n", engine_lever_id(atoi(t[1])));
             break;
 #else
         case 'R': /* no lever functions without a calibration */
-            printf("%d\n", TM_ERR_LEVER);
+            printf("%d\n", ENGINE_ERR_LEVER);
             break;
 #endif
         case 'X':
-            tm_lever_reset(&states[atoi(t[1])]);
+            engine_lever_reset(&states[atoi(t[1])]);
             printf("ok\n");
             break;
         case 'N':
-            printf("%d\n", tm_rating_index(t[1]));
+            printf("%d\n", engine_rating_index(t[1]));
             break;
         case 'S':
-            printf("%s\n", tm_rating_name(atoi(t[1])));
+            printf("%s\n", engine_rating_name(atoi(t[1])));
             break;
         case 'B':
-            printf("%d\n", tm_bleed_index(t[1]));
+            printf("%d\n", engine_bleed_index(t[1]));
             break;
         case 'G':
-            printf("%s\n", tm_gate_name(atoi(t[1])));
+            printf("%s\n", engine_gate_name(atoi(t[1])));
             break;
         case 'P':
-            printf("%s %s %d %d %d\n", TM_PARAMETER, TM_UNIT, TM_NUM_RATINGS, TM_NUM_GATES, TM_NUM_BLEEDS);
+            printf("%s %s %d %d %d\n", ENGINE_PARAMETER, ENGINE_UNIT, ENGINE_NUM_RATINGS, ENGINE_NUM_GATES, ENGINE_NUM_BLEEDS);
             break;
         default:
             printf("?\n");
@@ -1001,7 +1001,7 @@ func TestWriteCRefuses(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, prefix := range []string{"2x_", "tm-", "__tm", "_Tm", "t m"} {
+	for _, prefix := range []string{"2x_", "engine-", "__engine", "_Engine", "en gine"} {
 		if err := WriteC(&bytes.Buffer{}, m, COptions{Prefix: prefix}); err == nil || !strings.Contains(err.Error(), "prefix") {
 			t.Errorf("prefix %q: got %v, want an error about the prefix", prefix, err)
 		}
@@ -1023,7 +1023,7 @@ func TestWriteCPrefix(t *testing.T) {
 	}
 	srcA := writeC(t, a, COptions{Prefix: "twin_"})
 	srcB := writeC(t, b, COptions{Prefix: "Test"})
-	if loc := regexp.MustCompile(`\b(tm|TM)_`).FindIndex(srcA); loc != nil {
+	if loc := regexp.MustCompile(`\b(engine|ENGINE)_`).FindIndex(srcA); loc != nil {
 		t.Errorf("twin_ C still says %q", srcA[max(0, loc[0]-40):loc[1]+20])
 	}
 	for name, src := range map[string][]byte{"a.c": srcA, "b.c": srcB} {
