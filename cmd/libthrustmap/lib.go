@@ -1,11 +1,12 @@
 // Libthrustmap is thrustmap's C ABI: built with
 //
-//	go build -buildmode=c-shared -o libthrustmap.so ./cmd/libthrustmap
+//	bash cmd/libthrustmap/build.sh OUTDIR
 //
 // it is a shared library (a DLL on Windows, see build-windows.sh) whose
-// interface is documented in thrustmap.h, beside this file. A handle holds one
-// loaded model and the state of each calibrated lever; calls on different
-// levers run in parallel and calls on one lever are serialised.
+// interface is documented in thrustmap.h, beside this file, which build.sh
+// installs as OUTDIR/include/thrustmap.h. A handle holds one loaded model and
+// the state of each calibrated lever; calls on different levers run in
+// parallel and calls on one lever are serialised.
 //
 // Simulation only: not certified, never for setting thrust on a real
 // aircraft.
@@ -27,9 +28,10 @@ import (
 // main is required by -buildmode=c-shared and never runs.
 func main() {}
 
-// The core's return codes are thrustmap.h's: each array type has length 0
+// The core's interface version and return codes are thrustmap.h's: each array type has length 0
 // only when the two agree.
 var (
+	_ [0]struct{} = [C.THRUSTMAP_ABI_VERSION - abiVersion]struct{}{}
 	_ [0]struct{} = [C.THRUSTMAP_OK - codeOK]struct{}{}
 	_ [0]struct{} = [C.THRUSTMAP_EBADHANDLE - codeBadHandle]struct{}{}
 	_ [0]struct{} = [C.THRUSTMAP_EINVAL - codeInvalid]struct{}{}

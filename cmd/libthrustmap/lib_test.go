@@ -3,12 +3,15 @@ package main
 import (
 	"bufio"
 	"bytes"
+	"debug/elf"
 	"fmt"
 	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
 	"runtime"
+	"slices"
 	"strings"
 	"testing"
 
@@ -30,19 +33,19 @@ var testConditions = []thrustmap.Conditions{
 // back, one count a step (so the deadband holds readings).
 const rawLo, rawHi = 200, 3900
 
-// TestCABI builds the shared library, compiles ctest/thrustmap_test.c
-// against its header and runs it: the C program checks every command of a
-// lever sweep on several threads, the targets, the error paths and close
+// TestCABI builds the library with build.sh, as a user does, checks the
+// installed layout, compiles ctest/thrustmap_test.c with only the installed
+// include and lib folders and runs it: the C program checks every command of
+// a lever sweep on several threads, the targets, the error paths and close
 // against the values the Go API gives here.
 func TestCABI(t *testing.T) {
 	if testing.Short() {
 		t.Skip("builds a shared library and a C program")
 	}
-	if runtime.GOOS == "windows" {
-		t.Skip("the C test is built for ELF/Mach-O hosts; build-windows.sh cross-builds the DLL")
+	if runtime.GOOS == "windows" || runtime.GOOS == "darwin" {
+		t.Skip("build.sh builds an ELF library; build-windows.sh cross-builds the DLL")
 	}
-	goTool, err := exec.LookPath("go")
-	if err != nil {
+	if _, err := exec.LookPath("go"); err != nil {
 		t.Skip("go tool not in PATH")
 	}
 	gcc, err := exec.LookPath("gcc")
@@ -51,28 +54,104 @@ func TestCABI(t *testing.T) {
 	}
 	dir := t.TempDir()
 
-	// The library, as a user builds it, with the hand-written header beside
-	// the generated one.
 	// Never -race: the race runtime cannot shadow a c-shared library (see
 	// TestCoreConcurrent, which covers the same locking under -race).
-	run(t, "", []string{"CGO_ENABLED=1"}, goTool, "build", "-buildmode=c-shared", "-o", filepath.Join(dir, "libthrustmap.so"), ".")
-	hdr, err := os.ReadFile("thrustmap.h")
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := os.WriteFile(filepath.Join(dir, "thrustmap.h"), hdr, 0o644); err != nil {
-		t.Fatal(err)
-	}
+	pkg := filepath.Join(dir, "pkg")
+	run(t, "", []string{"CGO_ENABLED=1", "CC=" + gcc}, "bash", "build.sh", pkg)
+	checkLayout(t, pkg)
 
 	expected := filepath.Join(dir, "expected.txt")
 	writeExpected(t, expected)
 
 	bin := filepath.Join(dir, "thrustmap_test")
-	run(t, "", nil, gcc, "-Wall", "-Wextra", "-Werror", "-std=c11", "-pthread", "-I", dir,
+	lib := filepath.Join(pkg, "lib")
+	run(t, "", nil, gcc, "-Wall", "-Wextra", "-Werror", "-std=c11", "-pthread", "-I", filepath.Join(pkg, "include"),
 		"-o", bin, filepath.Join("ctest", "thrustmap_test.c"),
-		"-L", dir, "-lthrustmap", "-Wl,-rpath,"+dir, "-lm")
+		"-L", lib, "-lthrustmap", "-Wl,-rpath,"+lib, "-lm")
 	out := run(t, "", nil, bin, expected)
 	t.Logf("%s", out)
+}
+
+// checkLayout checks what build.sh installed: the header as written, the
+// library under its soname with the link-time symlink, and a pkg-config
+// file that gives the installed folders.
+func checkLayout(t *testing.T, pkg string) {
+	t.Helper()
+	hdr, err := os.ReadFile("thrustmap.h")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got, err := os.ReadFile(filepath.Join(pkg, "include", "thrustmap.h")); err != nil || !bytes.Equal(got, hdr) {
+		t.Errorf("include/thrustmap.h is not thrustmap.h (%v)", err)
+	}
+	soname := fmt.Sprintf("libthrustmap.so.%d", abiVersion)
+	if link, err := os.Readlink(filepath.Join(pkg, "lib", "libthrustmap.so")); err != nil || link != soname {
+		t.Errorf("lib/libthrustmap.so links to %q (%v), want %q", link, err, soname)
+	}
+	f, err := elf.Open(filepath.Join(pkg, "lib", soname))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	if names, err := f.DynString(elf.DT_SONAME); err != nil || len(names) != 1 || names[0] != soname {
+		t.Errorf("lib/%s has soname %q (%v), want %q", soname, names, err, soname)
+	}
+	pc, err := os.ReadFile(filepath.Join(pkg, "lib", "pkgconfig", "thrustmap.pc"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := fmt.Sprintf("\nVersion: %d\n", abiVersion); !bytes.Contains(pc, []byte(want)) {
+		t.Errorf("thrustmap.pc has no %q:\n%s", want, pc)
+	}
+	pkgConfig, err := exec.LookPath("pkg-config")
+	if err != nil {
+		t.Log("pkg-config not found: thrustmap.pc not resolved")
+		return
+	}
+	flags := strings.Fields(string(run(t, "", []string{"PKG_CONFIG_PATH=" + filepath.Join(pkg, "lib", "pkgconfig")},
+		pkgConfig, "--cflags", "--libs", "thrustmap")))
+	want := []string{"-I" + filepath.Join(pkg, "include"), "-L" + filepath.Join(pkg, "lib"), "-lthrustmap"}
+	if len(flags) != len(want) {
+		t.Fatalf("pkg-config thrustmap: %q, want %q", flags, want)
+	}
+	for i, f := range flags {
+		if f[:2] != want[i][:2] || filepath.Clean(f[2:]) != filepath.Clean(want[i][2:]) {
+			t.Errorf("pkg-config thrustmap: %q, want %q", flags, want)
+		}
+	}
+}
+
+// TestHeaderDeclaresExports: thrustmap.h declares exactly the functions
+// lib.go exports. cgo itself refuses a declaration whose types differ from
+// its export (the generated header repeats each one after including
+// thrustmap.h, and build.sh compiles it again), but not a declared function
+// that nothing exports, which would fail only when a client links.
+func TestHeaderDeclaresExports(t *testing.T) {
+	hdr, err := os.ReadFile("thrustmap.h")
+	if err != nil {
+		t.Fatal(err)
+	}
+	src, err := os.ReadFile("lib.go")
+	if err != nil {
+		t.Fatal(err)
+	}
+	declared := regexp.MustCompile(`(?m)^[a-z][a-z0-9_ ]*[ *](thrustmap_[a-z0-9_]+)\(`).FindAllSubmatch(hdr, -1)
+	exported := regexp.MustCompile(`(?m)^//export (thrustmap_[a-z0-9_]+)$`).FindAllSubmatch(src, -1)
+	set := func(ms [][][]byte) []string {
+		var out []string
+		for _, m := range ms {
+			out = append(out, string(m[1]))
+		}
+		slices.Sort(out)
+		return out
+	}
+	d, e := set(declared), set(exported)
+	if len(d) == 0 || !slices.Equal(d, e) {
+		t.Errorf("thrustmap.h declares %q\nlib.go exports     %q", d, e)
+	}
+	if m := regexp.MustCompile(`(?m)^#define THRUSTMAP_ABI_VERSION (\d+)$`).FindSubmatch(hdr); m == nil || string(m[1]) != fmt.Sprint(abiVersion) {
+		t.Errorf("thrustmap.h: THRUSTMAP_ABI_VERSION line %q, want %d", m, abiVersion)
+	}
 }
 
 // run runs a command and fails the test with its output when it fails.

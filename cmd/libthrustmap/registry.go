@@ -20,6 +20,10 @@ import (
 // under the race detector): the exports in lib.go only convert between C and
 // these.
 
+// abiVersion is thrustmap.h's THRUSTMAP_ABI_VERSION (lib.go checks that at
+// compile time), the N of the library's soname libthrustmap.so.N.
+const abiVersion = 1
+
 // Return codes, equal to thrustmap.h's THRUSTMAP_OK and THRUSTMAP_E* (lib.go
 // checks that at compile time).
 const (

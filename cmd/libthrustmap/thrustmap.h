@@ -8,14 +8,18 @@
  *
  * Build (from the module root):
  *
- *     go build -buildmode=c-shared -o libthrustmap.so ./cmd/libthrustmap
+ *     bash cmd/libthrustmap/build.sh OUTDIR
  *
- * gives libthrustmap.so and the generated libthrustmap.h, which includes this
- * file: keep the two headers side by side and include either one. cgo names
- * its header after the library, so never build it as "thrustmap.so": a
- * generated thrustmap.h would replace this one. On Windows,
- * cmd/libthrustmap/build-windows.sh cross-builds thrustmap.dll and renames its
- * generated header to libthrustmap.h for that reason.
+ * writes OUTDIR/include/thrustmap.h (this file, the one header to include),
+ * OUTDIR/lib/libthrustmap.so.N (soname libthrustmap.so.N, N the
+ * THRUSTMAP_ABI_VERSION below) with the symlink libthrustmap.so, and
+ * OUTDIR/lib/pkgconfig/thrustmap.pc. Compile and run a client with
+ *
+ *     cc -I OUTDIR/include -o plugin plugin.c -L OUTDIR/lib -lthrustmap -Wl,-rpath,OUTDIR/lib
+ *
+ * (or without the rpath and with LD_LIBRARY_PATH=OUTDIR/lib when running).
+ * On Windows, cmd/libthrustmap/build-windows.sh cross-builds the same layout
+ * with OUTDIR/bin/thrustmap.dll and its import libraries in OUTDIR/lib.
  *
  * The chain: raw lever counts -> calibrated thrust-lever angle (TLA) -> gate
  * -> rated engine target (N1 %, EPR or torque %, as the profile declares) at

@@ -28,7 +28,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "libthrustmap.h"
+#include "thrustmap.h"
 
 #define MAX_CONDS 16
 #define MAX_GATES 16
