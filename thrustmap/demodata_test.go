@@ -10,14 +10,14 @@ import (
 // its fields, and in the air from the lowest field to its ceiling at the
 // Mach numbers flown there.
 type useEnvelope struct {
-	fieldFt  [2]float64 // pressure altitudes of the fields (ground, takeoff, go-around)
-	ceiling  float64    // highest cruise pressure altitude, ft
-	mmo      float64    // highest Mach
-	ground   []string   // ratings commanded on the ground: every gate's, through the lever
-	lowAir   []string   // ratings commanded in the air near the fields (go-around)
-	air      []string   // ratings commanded in the air at every altitude
-	airFrom  map[string]float64
-	turboFan bool
+	fieldFt  [2]float64         // pressure altitudes of the fields (ground, takeoff, go-around)
+	ceiling  float64            // highest cruise pressure altitude, ft
+	mmo      float64            // highest Mach
+	ground   []string           // ratings commanded on the ground: every gate's, through the lever
+	lowAir   []string           // ratings commanded in the air near the fields (go-around)
+	air      []string           // ratings commanded in the air at every altitude
+	airFrom  map[string]float64 // per rating, the lowest Mach it is flown at (default: the band's)
+	turboFan bool               // a jet's Mach schedule, else a turboprop's
 }
 
 // demoUse lists, per demo, which rating is used where. A rating named by a
@@ -45,10 +45,10 @@ var demoUse = map[string]useEnvelope{
 	},
 }
 
-// machBand is the Mach flown at a pressure altitude: a jet climbs at 250 kt
-// below 10 000 ft (about 0.38 to 0.45 Mach) and up to its Mmo higher up,
-// never slower than about 0.2 in the air; a turboprop flies 0.15 Mach up to
-// its Mmo everywhere (common practice, from memory).
+// machBand is the Mach flown at a pressure altitude: a jet flies 0.2 to 0.5
+// Mach below 10 000 ft (250 kt there is about 0.38 to 0.45), 0.3 to 0.75 up to
+// 25 000 ft and 0.5 to its Mmo higher up; a turboprop flies 0.15 Mach up to its
+// Mmo everywhere (common practice, from memory).
 func (u useEnvelope) machBand(alt float64) [2]float64 {
 	switch {
 	case !u.turboFan:
