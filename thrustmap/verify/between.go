@@ -434,6 +434,8 @@ func checkGridBump(r *Report, label string, g *grid.Grid, basis thrustmap.Temper
 type cut struct {
 	drop, alt, mach, corner float64 // the corner in the axis's own terms
 	tFrom, tTo, vFrom, vTo  float64
+	rows                    [2]float64 // the altitude rows around it
+	rowCorners              [2]float64 // their corners, in the axis's own terms
 }
 
 // checkCornerCut reports the worst cut of a rating's flat region (see
@@ -448,13 +450,23 @@ func checkCornerCut(r *Report, rt *thrustmap.Rating) {
 		where += fmt.Sprintf(", Mach %g", c.mach)
 	}
 	basis := rt.Basis()
-	advice := "an ISA_DEV axis with corner_isa_dev_c keeps the corner on one column at every altitude"
-	if basis == thrustmap.ISADev {
-		advice = "a temperature column at the corner keeps it (on an ISA_DEV axis the corner is one column at every altitude)"
+	// The advice depends on whether the corner moves along the axis
+	// between the two rows: if it does not, a column at it keeps the kink;
+	// if it does, no choice of columns can.
+	var advice string
+	if math.Abs(c.rowCorners[1]-c.rowCorners[0]) < 0.05 {
+		advice = fmt.Sprintf("a temperature column at the corner (%s) keeps it", coord(grid.Temperature, basis, c.corner))
+	} else {
+		advice = fmt.Sprintf("the corner moves from %s at %.0f ft to %s at %.0f ft, and between rows whose corners differ no choice of columns keeps the flat region",
+			coord(grid.Temperature, basis, c.rowCorners[0]), c.rows[0], coord(grid.Temperature, basis, c.rowCorners[1]), c.rows[1])
+		if basis != thrustmap.ISADev {
+			advice += "; an ISA_DEV axis with corner_isa_dev_c keeps the corner on one column at every altitude"
+		}
+		advice += "; where the corner must move, closer altitude rows make the cut smaller"
 	}
 	r.warnf(CheckCornerCut, where,
 		"between the altitude rows the value falls from %.6g at %s to %.6g at %s (by %.3g) although the corner there is %s: "+
-			"below the corner the rating is flat, so interpolation cut the flat region; %s",
+			"below the corner the rating is flat rated, so interpolation cut the flat region; %s",
 		c.vFrom, coord(grid.Temperature, basis, c.tFrom), c.vTo, coord(grid.Temperature, basis, c.tTo), c.drop,
 		coord(grid.Temperature, basis, c.corner), advice)
 }
@@ -516,6 +528,8 @@ func cornerCut(rt *thrustmap.Rating) (cut, bool) {
 		if !rowFlat(i) || !rowFlat(i+1) {
 			continue
 		}
+		c0, _ := cornerAt(alts[i])
+		c1, _ := cornerAt(alts[i+1])
 		for j := 1; j <= k; j++ {
 			alt := alts[i] + (alts[i+1]-alts[i])*float64(j)/float64(k+1)
 			corner, ok := cornerAt(alt)
@@ -528,7 +542,8 @@ func cornerCut(rt *thrustmap.Rating) (cut, bool) {
 				for _, x := range ts {
 					v, _ := t.At([grid.NumAxes]float64{alt, x, m})
 					if d := hi - v; d > tol && d > worst.drop {
-						worst = cut{drop: d, alt: alt, mach: m, corner: corner, tFrom: tHi, tTo: x, vFrom: hi, vTo: v}
+						worst = cut{drop: d, alt: alt, mach: m, corner: corner, tFrom: tHi, tTo: x, vFrom: hi, vTo: v,
+							rows: [2]float64{alts[i], alts[i+1]}, rowCorners: [2]float64{c0, c1}}
 					}
 					if v >= hi-level { // the last sample at the top: where the fall begins
 						hi, tHi = max(hi, v), x

@@ -190,6 +190,16 @@ func TestMonotoneBump(t *testing.T) {
 		// least that much, less what the samples at sixths of a cell miss.
 		{"climb at Mach 0.3, monotone", g2, map[grid.Axis]float64{grid.Temperature: 0.0070}},
 		{"climb, three axes, monotone", climbGrid(t, true, grid.Monotone), map[grid.Axis]float64{grid.Temperature: 0.0070, grid.Mach: 0.0005}},
+		// Rows 0 and 1 flat along the temperature axis, row 2 dipping at
+		// T 2. Worked by hand from the Hermite form on the altitude segment
+		// 0…1 (values 0 and 1, so at 0.5 the value is
+		// 0.5 + 0.125·d0 − 0.125·d1) with gonum's Fritsch–Butland slopes:
+		// at row 1 the secants are 1 and 1, so d1 = 1, except at T 2,
+		// where the secant above is 0 and d1 = 0; at the bottom edge
+		// d0 = (3·1 − s1)/2, so 1, and 1.5 at T 2. The value at 0.5 is
+		// 0.5 at T 1 and 0.6875 at T 2 — a rise of 0.1875, the largest
+		// among the samples at sixths, where rows 0 and 1 are flat.
+		{"flat rows, a dip beyond them", flatRows(t), map[grid.Axis]float64{grid.Temperature: 0.1875 - 1e-12}},
 		// Multilinear interpolation along an axis is a convex combination,
 		// with weights that do not change along it, of the grid lines around
 		// the point: where they all fall, it falls. No bump.
@@ -237,6 +247,14 @@ func TestMonotoneBump(t *testing.T) {
 		}
 	}
 
+	// The hand-worked numbers of the flat rows: 0.5 at (0.5, T 1) to
+	// 0.6875 at (0.5, T 2).
+	fl, _ := newLattice(flatRows(t))
+	if got := fl.bumps(1e-6); len(got) != 1 || got[0].from != [grid.NumAxes]float64{0.5, 1, 0} || got[0].to != [grid.NumAxes]float64{0.5, 2, 0} ||
+		math.Abs(got[0].vFrom-0.5) > 1e-12 || math.Abs(got[0].vTo-0.6875) > 1e-12 || got[0].dataDir != 0 {
+		t.Errorf("flat rows: got %+v, want 0.5 at (0.5, 1) rising to 0.6875 at (0.5, 2) where the data are flat", got)
+	}
+
 	// The largest rise along TAT in the cell −10…10 °C at 6666.7 ft, from
 	// a dense scan with gonum alone; the check's samples at sixths of each
 	// cell come within 10 % of it and never above it.
@@ -252,6 +270,20 @@ func TestMonotoneBump(t *testing.T) {
 	if b.axis != grid.Temperature || b.size > dense+1e-12 || b.size < 0.9*dense {
 		t.Errorf("bump along %s of %.6g; a dense scan at 6666.7 ft finds %.6g", b.axis, b.size, dense)
 	}
+}
+
+// flatRows is a table whose rows 0 and 1 are flat along the temperature
+// axis and whose row 2 dips at its middle point.
+func flatRows(t *testing.T) *grid.Grid {
+	g, err := grid.New([grid.NumAxes][]float64{{0, 1, 2}, {0, 1, 2, 3, 4}, nil}, []float64{
+		0, 0, 0, 0, 0,
+		1, 1, 1, 1, 1,
+		2, 2, 1, 2, 2,
+	}, grid.Monotone)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return g
 }
 
 // additive is f = a(alt) + b(T) on a monotone grid, a rising and b
@@ -320,7 +352,7 @@ corner_c = [29, 25]
 values = [
   [1.520, 1.520, 1.520, 1.466],
   [1.539, 1.539, 1.518, 1.464],
-]`, true, cut{drop: 0.00525, alt: 1000, corner: 27, tFrom: 25, tTo: 27, vFrom: 1.52950, vTo: 1.52425},
+]`, true, cut{drop: 0.00525, alt: 1000, corner: 27, tFrom: 25, tTo: 27, vFrom: 1.52950, vTo: 1.52425, rows: [2]float64{0, 2000}, rowCorners: [2]float64{29, 25}},
 		},
 		{
 			// The same rows on an ISA_DEV axis with the corner at ISA+10 on a
@@ -370,7 +402,8 @@ values = [
 			continue
 		}
 		w := tc.want
-		for _, d := range [][2]float64{{got.drop, w.drop}, {got.alt, w.alt}, {got.corner, w.corner}, {got.tFrom, w.tFrom}, {got.tTo, w.tTo}, {got.vFrom, w.vFrom}, {got.vTo, w.vTo}} {
+		for _, d := range [][2]float64{{got.drop, w.drop}, {got.alt, w.alt}, {got.corner, w.corner}, {got.tFrom, w.tFrom}, {got.tTo, w.tTo}, {got.vFrom, w.vFrom}, {got.vTo, w.vTo},
+			{got.rows[0], w.rows[0]}, {got.rows[1], w.rows[1]}, {got.rowCorners[0], w.rowCorners[0]}, {got.rowCorners[1], w.rowCorners[1]}} {
 			if math.Abs(d[0]-d[1]) > 1e-9 {
 				t.Errorf("%s: got %+v, want %+v", tc.name, got, w)
 				break
@@ -393,8 +426,13 @@ func TestBetweenMessages(t *testing.T) {
 			t.Errorf("%q does not say %q", f.Where+": "+f.Message, s)
 		}
 	}
-	r = Report{}
-	checkCornerCut(&r, cornerProfile(t, `
+	// corner_cut: the advice follows whether the corner moves along the
+	// axis between the rows around the worst place.
+	for _, tc := range []struct {
+		name, rating string
+		say, not     []string
+	}{
+		{"OAT columns, a corner per row", `
 temperature = "OAT"
 altitude_ft = [0, 2000]
 temperature_c = [-40, 25, 29, 40]
@@ -402,14 +440,45 @@ corner_c = [29, 25]
 values = [
   [1.520, 1.520, 1.520, 1.466],
   [1.539, 1.539, 1.518, 1.464],
-]`))
-	if len(r.Warnings) != 1 {
-		t.Fatalf("want one warning, got %+v", r.Warnings)
-	}
-	f = r.Warnings[0]
-	for _, s := range []string{"takeoff, 1000 ft", "1.5295 at OAT 25.0 °C", "1.52425 at OAT 27.0 °C", "by 0.00525", "corner there is OAT 27.0 °C", "ISA_DEV axis with corner_isa_dev_c"} {
-		if !strings.Contains(f.Where+": "+f.Message, s) {
-			t.Errorf("%q does not say %q", f.Where+": "+f.Message, s)
+]`, []string{"takeoff, 1000 ft", "1.5295 at OAT 25.0 °C", "1.52425 at OAT 27.0 °C", "by 0.00525", "corner there is OAT 27.0 °C",
+			"moves from OAT 29.0 °C at 0 ft to OAT 25.0 °C at 2000 ft", "ISA_DEV axis with corner_isa_dev_c", "closer altitude rows"}, nil},
+		// ISA at 4000 ft is 7.0752 °C (288.15 K − 6.5 K/km · 1.2192 km),
+		// so the corners are ISA+15 and ISA+10, each on a column.
+		{"ISA_DEV columns, a corner per row", `
+temperature = "ISA_DEV"
+altitude_ft = [0, 4000]
+temperature_c = [-30, 0, 10, 15, 30]
+corner_c = [30, 17.0752]
+values = [
+  [1.500, 1.500, 1.500, 1.500, 1.450],
+  [1.500, 1.500, 1.500, 1.480, 1.440],
+]`, []string{"moves from ISA+15.0 °C at 0 ft to ISA+10.0 °C at 4000 ft", "no choice of columns", "closer altitude rows"}, []string{"ISA_DEV axis with"}},
+		{"ISA_DEV columns, the corner between two", `
+temperature = "ISA_DEV"
+altitude_ft = [0, 4000]
+temperature_c = [-30, 0, 15, 30]
+corner_isa_dev_c = 10
+values = [
+  [1.520, 1.520, 1.500, 1.450],
+  [1.540, 1.540, 1.520, 1.470],
+]`, []string{"a temperature column at the corner (ISA+10.0 °C) keeps it"}, []string{"moves from", "ISA_DEV axis with"}},
+	} {
+		r = Report{}
+		checkCornerCut(&r, cornerProfile(t, tc.rating))
+		if len(r.Warnings) != 1 {
+			t.Errorf("%s: want one warning, got %+v", tc.name, r.Warnings)
+			continue
+		}
+		msg := r.Warnings[0].Where + ": " + r.Warnings[0].Message
+		for _, s := range tc.say {
+			if !strings.Contains(msg, s) {
+				t.Errorf("%s: %q does not say %q", tc.name, msg, s)
+			}
+		}
+		for _, s := range tc.not {
+			if strings.Contains(msg, s) {
+				t.Errorf("%s: %q says %q", tc.name, msg, s)
+			}
 		}
 	}
 }
