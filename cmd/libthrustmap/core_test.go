@@ -1,10 +1,15 @@
 package main
 
 import (
+	"math"
+	"os"
+	"path/filepath"
+	"slices"
 	"strings"
 	"sync"
 	"sync/atomic"
 	"testing"
+	"unsafe"
 
 	"github.com/thrustmap/thrustmap/thrustmap"
 )
@@ -39,7 +44,7 @@ func TestCoreConcurrent(t *testing.T) {
 	sweep := func(lever int, exact bool) {
 		var want thrustmap.LeverState
 		for k, tc := range testConditions {
-			in := conditions{tc.AltitudeFt, tc.OATC, tc.Mach, uint32(tc.Bleeds), tc.OnGround, tc.AssumedSet, tc.AssumedC}
+			in := conditions{tc.AltitudeFt, tc.OATC, tc.Mach, uint64(tc.Bleeds), tc.OnGround, tc.AssumedSet, tc.AssumedC}
 			for raw := rawLo; raw <= rawHi; raw += step {
 				got, code := call(t, id, func(h *handle) (thrustmap.LeverCommand, int) { return h.command(lever, raw, in) })
 				if code != codeOK {
@@ -79,12 +84,12 @@ func TestCoreConcurrent(t *testing.T) {
 			in := conditions{AltFt: 2000, OATC: 20, OnGround: true}
 			for range 200 {
 				want, _ := m.Profile().Target("takeoff", thrustmap.Conditions{AltitudeFt: 2000, OATC: 20, OnGround: true})
-				v, code := call(t, id, func(h *handle) (float64, int) { return h.target("takeoff", in) })
-				if code != codeOK || v != want.Value {
+				v, code := call(t, id, func(h *handle) (thrustmap.Result, int) { return h.target("takeoff", in) })
+				if code != codeOK || v != want {
 					t.Errorf("target: %v code %d, want %v", v, code, want.Value)
 					return
 				}
-				if _, code := call(t, id, func(h *handle) (float64, int) { return h.target("warp", in) }); code != codeInvalid {
+				if _, code := call(t, id, func(h *handle) (thrustmap.Result, int) { return h.target("warp", in) }); code != codeInvalid {
 					t.Errorf("unknown rating: code %d", code)
 				}
 				if msg, ok := errorText(id); !ok || msg == "" {
@@ -218,4 +223,211 @@ func TestCopyCString(t *testing.T) {
 			t.Errorf("size %d: %q, want %q then NUL", c.size, buf, c.want)
 		}
 	}
+}
+
+// TestCoreCommandLevers: a batch is its levers' single commands in order
+// (also with a lever twice and with the most levers a call takes), checks
+// every lever before any moves, and allocates nothing.
+func TestCoreCommandLevers(t *testing.T) {
+	a, b := openHandle("demo", "demo"), openHandle("demo", "demo")
+	if a == 0 || b == 0 {
+		t.Fatal(globalErrText())
+	}
+	defer closeHandle(a)
+	defer closeHandle(b)
+	ha, hb := acquire(a), acquire(b)
+	defer ha.release()
+	defer hb.release()
+
+	rnd := uint32(7)
+	var levers, raws [maxBatch]int32
+	for frame := range 500 {
+		n := 1 + frame%4
+		if frame%50 == 0 {
+			n = maxBatch
+		}
+		tc := testConditions[frame/25%len(testConditions)]
+		in := conditions{tc.AltitudeFt, tc.OATC, tc.Mach, uint64(tc.Bleeds), tc.OnGround, tc.AssumedSet, tc.AssumedC}
+		for k := range n {
+			rnd = rnd*1664525 + 1013904223 // a linear congruential generator (Numerical Recipes)
+			levers[k], raws[k] = int32(1+rnd>>31), int32(200+rnd>>8%3700)
+		}
+		var got [maxBatch]thrustmap.LeverCommand
+		if code := ha.commandLevers(levers[:n], raws[:n], in, func(i int, cmd thrustmap.LeverCommand) { got[i] = cmd }); code != codeOK {
+			t.Fatalf("frame %d: code %d: %s", frame, code, ha.errText())
+		}
+		for k := range n {
+			want, code := hb.command(int(levers[k]), int(raws[k]), in)
+			if code != codeOK || got[k] != want {
+				t.Fatalf("frame %d, lever %d (%d of %d) raw %d:\nbatch  %+v\nsingle %+v (code %d)", frame, levers[k], k, n, raws[k], got[k], want, code)
+			}
+		}
+	}
+
+	// Bad arguments: found before any lever moves. Lever 1 is held at raw
+	// 2000 by its deadband (2 counts); had a failed batch moved it to 3000,
+	// raw 2001 would be a new reading.
+	ok := conditions{OATC: 15, OnGround: true}
+	put := func(i int, _ thrustmap.LeverCommand) { t.Errorf("a failing batch put lever %d", i) }
+	ha.command(1, 2000, ok)
+	hb.command(1, 2000, ok)
+	for _, c := range []struct {
+		name         string
+		levers, raws []int32
+		in           conditions
+		msg          string
+	}{
+		{"empty", nil, nil, ok, "n = 0 levers: want 1 to 64"},
+		{"too many", make([]int32, maxBatch+1), make([]int32, maxBatch+1), ok, "n = 65 levers"},
+		{"raws short", []int32{1, 2}, []int32{3000}, ok, "2 levers, 1 raw counts"},
+		{"unknown lever", []int32{1, 7, 2}, []int32{3000, 1000, 1000}, ok, "levers[1]: bad argument: lever 7 is not in calibration"},
+		{"bleed bit", []int32{1}, []int32{3000}, conditions{OATC: 15, Bleeds: 1 << 63}, "bleed bits 0x8000000000000000 are beyond"},
+	} {
+		if code := ha.commandLevers(c.levers, c.raws, c.in, put); code != codeInvalid || !strings.Contains(ha.errText(), c.msg) {
+			t.Errorf("%s: code %d, message %q; want %d and %q", c.name, code, ha.errText(), codeInvalid, c.msg)
+		}
+	}
+	mine, _ := ha.command(1, 2001, ok)
+	theirs, _ := hb.command(1, 2001, ok)
+	if mine != theirs {
+		t.Errorf("a failed batch moved lever 1: TLA %v, want %v", mine.TLADeg, theirs.TLADeg)
+	}
+	for _, n := range []int{0, -1, maxBatch + 1, math.MinInt32, math.MaxInt32} {
+		if checkBatch(n) == nil {
+			t.Errorf("checkBatch(%d) accepts it", n)
+		}
+	}
+	for _, n := range []int{1, maxBatch} {
+		if err := checkBatch(n); err != nil {
+			t.Errorf("checkBatch(%d): %v", n, err)
+		}
+	}
+
+	// No allocation per frame: the conditions drift every frame, as in a
+	// climb, so every gate target is worked out again.
+	frame := 0
+	var sink float64
+	allocs := testing.AllocsPerRun(200, func() {
+		frame++
+		in := conditions{AltFt: float64(frame * 10), OATC: 20 - 0.002*float64(frame*10), Mach: 0.3}
+		ha.commandLevers([]int32{1, 2, 1, 2}, []int32{int32(1300 + frame), int32(2900 - frame), 2000, 2100}, in,
+			func(_ int, cmd thrustmap.LeverCommand) { sink += cmd.Value })
+	})
+	if allocs != 0 {
+		t.Errorf("commandLevers allocates %v times a frame, want 0", allocs)
+	}
+}
+
+// TestCoreQueries checks what a handle tells about itself against the Go
+// API, on the demo and on testProfile, whose 64 bleeds use bit 63.
+func TestCoreQueries(t *testing.T) {
+	dir := t.TempDir()
+	prof := filepath.Join(dir, "test-profile.toml")
+	if err := os.WriteFile(prof, []byte(testProfile()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct{ profile, cal string }{{"demo", "demo"}, {prof, ""}} {
+		m, err := thrustmap.LoadModel(tc.profile, tc.cal)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p := m.Profile()
+		id := openHandle(tc.profile, tc.cal)
+		if id == 0 {
+			t.Fatal(globalErrText())
+		}
+		h := acquire(id)
+		if got, want := cstr(unsafe.Pointer(h.parameter)), p.Parameter().String(); got != want {
+			t.Errorf("%s: parameter %q, want %q", tc.profile, got, want)
+		}
+		if got, want := cstr(unsafe.Pointer(h.unit)), p.Parameter().Unit(); got != want {
+			t.Errorf("%s: unit %q, want %q", tc.profile, got, want)
+		}
+		for i, r := range p.Ratings() {
+			if got := cstr(unsafe.Pointer(h.name("f", "rating", i, h.ratingNames))); got != r.Name() {
+				t.Errorf("%s: rating %d %q, want %q", tc.profile, i, got, r.Name())
+			}
+		}
+		if h.name("f", "rating", len(p.Ratings()), h.ratingNames) != nil || !strings.Contains(h.errText(), "out of range") {
+			t.Errorf("%s: rating out of range: %q", tc.profile, h.errText())
+		}
+		for i, b := range p.Bleeds() {
+			if got := cstr(unsafe.Pointer(h.name("f", "bleed bit", i, h.bleedNames))); got != b {
+				t.Errorf("%s: bleed %d %q, want %q", tc.profile, i, got, b)
+			}
+			if bit := h.bleedBit(b); bit != i {
+				t.Errorf("%s: bleed %q has bit %d, want %d", tc.profile, b, bit, i)
+			}
+		}
+		if code := h.bleedBit("no-such-bleed"); code != codeInvalid || !strings.Contains(h.errText(), `unknown bleed "no-such-bleed" (the profile has`) {
+			t.Errorf("%s: unknown bleed: code %d, %q", tc.profile, code, h.errText())
+		}
+		// Every declared bleed on at once is a valid set; one bit more is not.
+		all := uint64(1)<<len(p.Bleeds()) - 1
+		if len(p.Bleeds()) == 64 {
+			all = math.MaxUint64
+		}
+		if _, err := h.conditions(conditions{Bleeds: all}); err != nil {
+			t.Errorf("%s: all %d bleeds: %v", tc.profile, len(p.Bleeds()), err)
+		}
+		if _, err := h.conditions(conditions{Bleeds: all + 1}); len(p.Bleeds()) < 64 && err == nil {
+			t.Errorf("%s: bleed bit %d accepted", tc.profile, len(p.Bleeds()))
+		}
+		var ids [8]int32
+		n := h.leverIDsInto(ids[:])
+		var want []int32
+		if m.Calibration() != nil {
+			for _, l := range m.Calibration().Levers() {
+				want = append(want, int32(l.ID()))
+			}
+		}
+		if n != len(want) || !slices.Equal(ids[:n], want) {
+			t.Errorf("%s: lever ids %v (%d), want %v", tc.profile, ids[:n], n, want)
+		}
+		h.release()
+		closeHandle(id)
+	}
+}
+
+// TestTargetDetail: thrustmap_target_result's fields from a Result, with
+// NaN for what the assumed-temperature method did not work out.
+func TestTargetDetail(t *testing.T) {
+	nan := math.NaN()
+	same := func(a, b detail) bool {
+		eq := func(x, y float64) bool { return x == y || math.IsNaN(x) && math.IsNaN(y) }
+		return eq(a.Value, b.Value) && a.Evaluated == b.Evaluated && a.Applied == b.Applied && a.Reasons == b.Reasons &&
+			eq(a.AssumedC, b.AssumedC) && eq(a.EffectiveC, b.EffectiveC) && eq(a.ValueFull, b.ValueFull) && eq(a.ThrustReductionPct, b.ThrustReductionPct)
+	}
+	for _, c := range []struct {
+		name string
+		res  thrustmap.Result
+		want detail
+	}{
+		{"not evaluated", thrustmap.Result{Value: 95.5}, detail{95.5, 0, 0, 0, nan, nan, 95.5, nan}},
+		{"reduced, thrust checked", thrustmap.Result{Value: 90, Reduction: thrustmap.Reduction{Evaluated: true, Applied: true,
+			AssumedC: 50, EffectiveC: 48, ValueFull: 95, Reasons: thrustmap.ReductionLimited, ThrustChecked: true, ThrustReductionPct: 25}},
+			detail{90, 1, 1, uint32(thrustmap.ReductionLimited), 50, 48, 95, 25}},
+		{"no thrust grid", thrustmap.Result{Value: 1.4, Reduction: thrustmap.Reduction{Evaluated: true, Applied: true,
+			AssumedC: 40, EffectiveC: 40, ValueFull: 1.5, Reasons: thrustmap.ReductionNotChecked}},
+			detail{1.4, 1, 1, uint32(thrustmap.ReductionNotChecked), 40, 40, 1.5, nan}},
+		{"full rating", thrustmap.Result{Value: 95, Reduction: thrustmap.Reduction{Evaluated: true,
+			AssumedC: 10, EffectiveC: 20, ValueFull: 95, Reasons: thrustmap.TANotAboveOAT, ThrustChecked: true}},
+			detail{95, 1, 0, uint32(thrustmap.TANotAboveOAT), 10, 20, 95, 0}},
+	} {
+		if got := targetDetail(&c.res); !same(got, c.want) {
+			t.Errorf("%s: %+v, want %+v", c.name, got, c.want)
+		}
+	}
+}
+
+// cstr copies a NUL-terminated C string (test files cannot use cgo).
+func cstr(p unsafe.Pointer) string {
+	if p == nil {
+		return "<NULL>"
+	}
+	n := 0
+	for *(*byte)(unsafe.Add(p, n)) != 0 {
+		n++
+	}
+	return string(unsafe.Slice((*byte)(p), n))
 }

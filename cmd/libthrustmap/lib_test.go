@@ -61,7 +61,7 @@ func TestCABI(t *testing.T) {
 	checkLayout(t, pkg)
 
 	expected := filepath.Join(dir, "expected.txt")
-	writeExpected(t, expected)
+	writeExpected(t, expected, dir)
 
 	bin := filepath.Join(dir, "thrustmap_test")
 	lib := filepath.Join(pkg, "lib")
@@ -168,8 +168,9 @@ func run(t *testing.T, dir string, env []string, name string, args ...string) []
 }
 
 // writeExpected writes the expected values of the C test from the Go API
-// (the line formats are described in ctest/thrustmap_test.c).
-func writeExpected(t *testing.T, path string) {
+// (the line formats are described in ctest/thrustmap_test.c), and the test
+// profile and calibration of testProfile into dir.
+func writeExpected(t *testing.T, path, dir string) {
 	t.Helper()
 	m, err := thrustmap.LoadModel("demo", "demo")
 	if err != nil {
@@ -255,11 +256,172 @@ func writeExpected(t *testing.T, path string) {
 		}
 		fmt.Fprintf(w, "reset %d 0 %d %d %d %d\n", l.ID(), in, band, before.Gate, after.Gate)
 	}
+	writeDetails(t, w, m, dir)
 	if err := w.Flush(); err != nil {
 		t.Fatal(err)
 	}
 	if err := os.WriteFile(path, b.Bytes(), 0o644); err != nil {
 		t.Fatal(err)
+	}
+}
+
+// testProfile is an invented profile for the C test (simulation test data
+// only) with what the demo lacks: 64 bleeds, the most a profile declares, so
+// bit 63 of thrustmap_conditions.bleeds is used; an EPR rating with the
+// assumed-temperature method and no thrust grid (reason
+// reduction_not_checked); a redline the takeoff table crosses (flag
+// limited); gates active only on the ground, so in the air no gate is active
+// (THRUSTMAP_ECOMPUTE).
+func testProfile() string {
+	var bleeds []string
+	for i := range thrustmap.MaxBleeds {
+		bleeds = append(bleeds, fmt.Sprintf("%q", fmt.Sprintf("b%02d", i)))
+	}
+	return `# Invented test profile of the C interface test. Simulation test data only.
+schema = 1
+name = "C interface test engine (invented)"
+parameter = "EPR"
+bleeds = [` + strings.Join(bleeds, ", ") + `]
+
+[[rating]]
+name = "takeoff"
+altitude_ft = [0, 10000]
+temperature_c = [-40, 15, 60]
+values = [[1.50, 1.50, 1.40], [1.55, 1.55, 1.45]]
+
+[[rating]]
+name = "idle"
+values = 1.02
+
+[[correction]]
+rating = "takeoff"
+bleed = "b63"
+delta = 0.02
+
+[[correction]]
+rating = "takeoff"
+bleed = "b00"
+delta = -0.01
+
+[assumed_temperature]
+rating = "takeoff"
+max_c = 55
+max_reduction_pct = 25
+
+[limits]
+max = 1.54
+
+[lever]
+tla_min_deg = 0
+tla_max_deg = 50
+idle_gate = "idle"
+
+[[gate]]
+name = "idle"
+tla_deg = 0
+capture_deg = 1.5
+hysteresis_deg = 0.5
+rating = "idle"
+when = "on_ground"
+
+[[gate]]
+name = "takeoff"
+tla_deg = 50
+capture_deg = 1.5
+hysteresis_deg = 0.5
+rating = "takeoff"
+when = "on_ground"
+`
+}
+
+// testCalibration calibrates testProfile's one lever, id 5.
+const testCalibration = `# Invented test calibration. Simulation test data only.
+schema = 1
+
+[[lever]]
+id = 5
+raw_min = 0
+raw_max = 1000
+points = [[100, 0], [900, 50]]
+deadband = 0
+`
+
+// detailConditions are the conditions of the detail lines: profile 0 is
+// the demo, 1 testProfile. Between them they reach every reason code and
+// every flag of a target (writeDetails checks).
+var detailConditions = []struct {
+	profile int
+	c       thrustmap.Conditions
+}{
+	{0, thrustmap.Conditions{AltitudeFt: 0, OATC: 15, OnGround: true}},
+	{0, thrustmap.Conditions{AltitudeFt: 2000, OATC: 20, OnGround: true, AssumedSet: true, AssumedC: 50, Bleeds: 1 << 2}},
+	{0, thrustmap.Conditions{AltitudeFt: 0, OATC: 20, OnGround: true, AssumedSet: true, AssumedC: 10}},  // Ta ≤ OAT
+	{0, thrustmap.Conditions{AltitudeFt: 0, OATC: 10, OnGround: true, AssumedSet: true, AssumedC: 25}},  // Ta ≤ corner (ISA+15 = 30 °C)
+	{0, thrustmap.Conditions{AltitudeFt: 0, OATC: 35, OnGround: true, AssumedSet: true, AssumedC: 80}},  // Ta above max_c 70
+	{0, thrustmap.Conditions{AltitudeFt: 0, OATC: -20, OnGround: true, AssumedSet: true, AssumedC: 65}}, // a 25 % cut would not do
+	{0, thrustmap.Conditions{AltitudeFt: 45000, OATC: -60, Mach: 0.9, Bleeds: 1<<0 | 1<<1}},             // above the tables
+	{1, thrustmap.Conditions{AltitudeFt: 5000, OATC: 0, AssumedSet: true, AssumedC: 40, Bleeds: 1 << 63}},
+	{1, thrustmap.Conditions{AltitudeFt: 10000, OATC: -30, Bleeds: 1<<63 | 1}}, // 1.55 + 0.02 - 0.01 above the redline 1.54
+	{1, thrustmap.Conditions{AltitudeFt: 20000, OATC: 80, Mach: 0.5}},
+}
+
+// writeDetails writes testProfile and its calibration into dir and the
+// expected lines of what each handle holds and of every rating's target
+// detail at detailConditions.
+func writeDetails(t *testing.T, w *bufio.Writer, demo *thrustmap.Model, dir string) {
+	t.Helper()
+	prof, cal := filepath.Join(dir, "test-profile.toml"), filepath.Join(dir, "test-calibration.toml")
+	if err := os.WriteFile(prof, []byte(testProfile()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(cal, []byte(testCalibration), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	test, err := thrustmap.LoadModel(prof, cal)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fmt.Fprintf(w, "abi %d\nprofile 1 %s %s\n", abiVersion, prof, cal)
+	models := []*thrustmap.Model{demo, test}
+	for k, m := range models {
+		p := m.Profile()
+		levers := m.Calibration().Levers()
+		fmt.Fprintf(w, "info %d %s %s %d %d %d %d\n", k, p.Parameter(), p.Parameter().Unit(), len(p.Ratings()), len(p.Gates()), len(p.Bleeds()), len(levers))
+		for i, r := range p.Ratings() {
+			fmt.Fprintf(w, "rating %d %d %s\n", k, i, r.Name())
+		}
+		for i, b := range p.Bleeds() {
+			fmt.Fprintf(w, "bleed %d %d %s\n", k, i, b)
+		}
+		for i, l := range levers {
+			fmt.Fprintf(w, "lever %d %d %d\n", k, i, l.ID())
+		}
+	}
+	seen := map[string]bool{}
+	for k, dc := range detailConditions {
+		c := dc.c
+		fmt.Fprintf(w, "dcond %d %d %.17g %.17g %.17g %d %d %d %.17g\n", k, dc.profile, c.AltitudeFt, c.OATC, c.Mach, uint64(c.Bleeds), b2i(c.OnGround), b2i(c.AssumedSet), c.AssumedC)
+		p := models[dc.profile].Profile()
+		for _, r := range p.Ratings() {
+			res, err := p.Target(r.Name(), c)
+			if err != nil {
+				t.Fatalf("target %s at detail condition %d: %v", r.Name(), k, err)
+			}
+			red := res.Reduction
+			fmt.Fprintf(w, "detail %d %s %.17g %s %s %d %d %s %.17g %.17g %.17g %d %.17g\n", k, r.Name(), res.Value,
+				names(res.Flags.Names()), names(res.Clamped.Names()), b2i(red.Evaluated), b2i(red.Applied), names(red.Reasons.Names()),
+				red.AssumedC, red.EffectiveC, red.ValueFull, b2i(red.ThrustChecked), red.ThrustReductionPct)
+			for _, n := range append(append(res.Flags.Names(), res.Clamped.Names()...), red.Reasons.Names()...) {
+				seen[n] = true
+			}
+			seen["applied"] = seen["applied"] || red.Applied
+		}
+	}
+	for _, want := range []string{"ta_not_above_oat", "ta_below_corner", "ta_above_max", "reduction_limited", "reduction_not_checked",
+		"limited", "altitude", "temperature", "mach", "applied"} {
+		if !seen[want] {
+			t.Errorf("no target detail reaches %q: choose conditions that do", want)
+		}
 	}
 }
 
@@ -276,4 +438,51 @@ func b2i(b bool) int {
 		return 1
 	}
 	return 0
+}
+
+// TestTestProfile checks testProfile's targets that the C test compares
+// against, worked by hand from its table: at 5000 ft the rows at 0 and
+// 10000 ft average to 1.525, 1.525, 1.425 at -40, 15, 60 °C (OAT columns,
+// linear).
+func TestTestProfile(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "test-profile.toml")
+	if err := os.WriteFile(path, []byte(testProfile()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	p, err := thrustmap.LoadProfile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		name        string
+		c           thrustmap.Conditions
+		value, full float64
+		flags       string
+		reasons     string
+	}{
+		// Ta 40 °C: 1.525 - 0.1·25/45 (EPR: no √θ scaling), plus bleed
+		// b63's 0.02; the full value 1.525 + 0.02 is cut to the redline.
+		{"reduced", detailConditions[7].c, 1.525 - 0.1*25/45 + 0.02, 1.54, "", "reduction_not_checked"},
+		// 10000 ft, -30 °C: 1.55 + 0.02 (b63) - 0.01 (b00) = 1.56, cut to 1.54.
+		{"redline", detailConditions[8].c, 1.54, 1.54, "limited", ""},
+		// 20000 ft and 80 °C are beyond the table: its corner value 1.45.
+		{"clamped", detailConditions[9].c, 1.45, 1.45, "", ""},
+	} {
+		res, err := p.Target("takeoff", c.c)
+		if err != nil {
+			t.Fatal(err)
+		}
+		full := res.Value
+		if res.Reduction.Evaluated {
+			full = res.Reduction.ValueFull
+		}
+		if math.Abs(res.Value-c.value) > 1e-12 || math.Abs(full-c.full) > 1e-12 ||
+			strings.Join(res.Flags.Names(), ",") != c.flags || strings.Join(res.Reduction.ReasonNames(), ",") != c.reasons {
+			t.Errorf("%s: value %.17g full %.17g flags %v reasons %v; want %.17g %.17g %q %q", c.name, res.Value, full,
+				res.Flags.Names(), res.Reduction.ReasonNames(), c.value, c.full, c.flags, c.reasons)
+		}
+	}
+	if len(p.Bleeds()) != thrustmap.MaxBleeds {
+		t.Errorf("testProfile declares %d bleeds, want %d", len(p.Bleeds()), thrustmap.MaxBleeds)
+	}
 }

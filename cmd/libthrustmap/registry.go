@@ -9,6 +9,7 @@ import "C"
 import (
 	"errors"
 	"fmt"
+	"math"
 	"sync"
 	"sync/atomic"
 	"unsafe"
@@ -22,7 +23,12 @@ import (
 
 // abiVersion is thrustmap.h's THRUSTMAP_ABI_VERSION (lib.go checks that at
 // compile time), the N of the library's soname libthrustmap.so.N.
-const abiVersion = 1
+const abiVersion = 2
+
+// maxBatch is THRUSTMAP_MAX_BATCH, the most levers one
+// thrustmap_command_levers call takes: it bounds the work of one call and
+// catches a garbage count before the arrays are read.
+const maxBatch = 64
 
 // Return codes, equal to thrustmap.h's THRUSTMAP_OK and THRUSTMAP_E* (lib.go
 // checks that at compile time).
@@ -35,17 +41,24 @@ const (
 )
 
 // handle is one thrustmap_open: an immutable model, one state per
-// calibrated lever, the gate names as C strings and the last error.
+// calibrated lever, the names a caller may ask for as C strings, and the
+// last error.
 type handle struct {
 	id    int64
 	model *thrustmap.Model
 	// bleedMask has a bit for each bleed the profile declares.
-	bleedMask uint32
-	// levers is fixed at open and read without a lock; each lever's state is
-	// guarded by its own mutex.
-	levers map[int]*leverSlot
-	// gateNames are C strings allocated at open and freed at close.
-	gateNames []*C.char
+	bleedMask uint64
+	// leverIDs[i] is the calibration id of levers[i]. Both are fixed at open
+	// and read without a lock; each lever's state is guarded by its own
+	// mutex. A calibration holds a few levers, so a scan of leverIDs finds
+	// one faster than a map.
+	leverIDs []int
+	levers   []leverSlot
+	// The names as C strings, allocated at open and freed at close (cstrs
+	// holds every one of them).
+	gateNames, ratingNames, bleedNames []*C.char
+	parameter, unit                    *C.char
+	cstrs                              []*C.char
 
 	// life is held shared for the length of every call and exclusively by
 	// close, which therefore waits for calls in progress.
@@ -65,14 +78,17 @@ type leverSlot struct {
 // conditions are thrustmap_conditions in Go types.
 type conditions struct {
 	AltFt, OATC, Mach    float64
-	Bleeds               uint32
+	Bleeds               uint64
 	OnGround, AssumedSet bool
 	AssumedC             float64
 }
 
 var (
-	registryMu sync.RWMutex
-	registry   = map[int64]*handle{}
+	// registry maps the open handles' ids to them. Calls read it with one
+	// atomic load; open and close, under registryMu, replace it with an
+	// edited copy.
+	registryMu sync.Mutex
+	registry   atomic.Pointer[map[int64]*handle]
 	lastID     atomic.Int64
 
 	// globalErr is the message of the last failed open or call with a bad
@@ -94,39 +110,61 @@ func openHandle(profile, calibration string) int64 {
 	}
 	p := m.Profile()
 	nb := len(p.Bleeds())
-	if nb > 32 {
-		setGlobalErr(fmt.Sprintf("profile %s declares %d bleeds; the C interface passes at most 32", p.Source(), nb))
+	if nb > thrustmap.MaxBleeds { // a profile refuses more when it loads
+		setGlobalErr(fmt.Sprintf("profile %s declares %d bleeds; the C interface passes at most %d", p.Source(), nb, thrustmap.MaxBleeds))
 		return 0
 	}
-	h := &handle{model: m, levers: map[int]*leverSlot{}}
-	h.bleedMask = uint32(uint64(1)<<nb - 1)
+	// A shift by 64 gives 0: no bleeds, no bits.
+	h := &handle{model: m, bleedMask: uint64(math.MaxUint64) >> (64 - nb)}
 	if cal := m.Calibration(); cal != nil {
 		for _, l := range cal.Levers() {
-			h.levers[l.ID()] = &leverSlot{}
+			h.leverIDs = append(h.leverIDs, l.ID())
 		}
+		h.levers = make([]leverSlot, len(h.leverIDs))
 	}
 	for _, g := range p.Gates() {
-		h.gateNames = append(h.gateNames, C.CString(g.Name))
+		h.gateNames = append(h.gateNames, h.cstring(g.Name))
 	}
-	h.id = lastID.Add(1)
+	for _, r := range p.Ratings() {
+		h.ratingNames = append(h.ratingNames, h.cstring(r.Name()))
+	}
+	for _, b := range p.Bleeds() {
+		h.bleedNames = append(h.bleedNames, h.cstring(b))
+	}
+	h.parameter = h.cstring(p.Parameter().String())
+	h.unit = h.cstring(p.Parameter().Unit())
+
 	registryMu.Lock()
-	registry[h.id] = h
-	registryMu.Unlock()
+	defer registryMu.Unlock()
+	h.id = lastID.Add(1)
+	next := map[int64]*handle{h.id: h}
+	if old := registry.Load(); old != nil {
+		for id, o := range *old {
+			next[id] = o
+		}
+	}
+	registry.Store(&next)
 	return h.id
+}
+
+// cstring returns s as a C string that close frees.
+func (h *handle) cstring(s string) *C.char {
+	c := C.CString(s)
+	h.cstrs = append(h.cstrs, c)
+	return c
 }
 
 // acquire returns the open handle id with its life lock held shared, or nil
 // (after recording the error globally). The caller must call release.
 func acquire(id int64) *handle {
-	registryMu.RLock()
-	h := registry[id]
-	registryMu.RUnlock()
-	if h != nil {
-		h.life.RLock()
-		if !h.closed {
-			return h
+	if m := registry.Load(); m != nil {
+		if h := (*m)[id]; h != nil {
+			h.life.RLock()
+			if !h.closed {
+				return h
+			}
+			h.life.RUnlock()
 		}
-		h.life.RUnlock()
 	}
 	setGlobalErr(fmt.Sprintf("thrustmap: handle %d is not open", id))
 	return nil
@@ -139,8 +177,18 @@ func (h *handle) release() { h.life.RUnlock() }
 // its C strings. An id that is not open is ignored.
 func closeHandle(id int64) {
 	registryMu.Lock()
-	h := registry[id]
-	delete(registry, id)
+	var h *handle
+	if old := registry.Load(); old != nil {
+		if h = (*old)[id]; h != nil {
+			next := make(map[int64]*handle, len(*old)-1)
+			for k, o := range *old {
+				if k != id {
+					next[k] = o
+				}
+			}
+			registry.Store(&next)
+		}
+	}
 	registryMu.Unlock()
 	if h == nil {
 		return
@@ -148,10 +196,10 @@ func closeHandle(id int64) {
 	h.life.Lock()
 	defer h.life.Unlock()
 	h.closed = true
-	for i, s := range h.gateNames {
+	for _, s := range h.cstrs {
 		C.free(unsafe.Pointer(s))
-		h.gateNames[i] = nil
 	}
+	h.cstrs, h.gateNames, h.ratingNames, h.bleedNames, h.parameter, h.unit = nil, nil, nil, nil, nil, nil
 }
 
 // command is thrustmap_command on an acquired handle.
@@ -164,33 +212,84 @@ func (h *handle) command(lever, raw int, in conditions) (thrustmap.LeverCommand,
 	if err != nil {
 		return thrustmap.LeverCommand{}, h.fail(err)
 	}
-	l.mu.Lock()
-	defer l.mu.Unlock()
-	done := false
-	defer func() {
-		if !done { // Command panicked: the state may be half updated
-			l.state.Reset()
-		}
-	}()
-	cmd, err := h.model.Command(&l.state, lever, float64(raw), c)
-	done = true
+	cmd, err := h.run(l, lever, raw, c)
 	if err != nil {
 		return cmd, h.fail(err)
 	}
 	return cmd, codeOK
 }
 
-// target is thrustmap_target on an acquired handle.
-func (h *handle) target(rating string, in conditions) (float64, int) {
+// checkBatch checks thrustmap_command_levers' count before its arrays are
+// read.
+func checkBatch(n int) error {
+	if n < 1 || n > maxBatch {
+		return fmt.Errorf("%w: thrustmap_command_levers: n = %d levers: want 1 to %d (THRUSTMAP_MAX_BATCH)", errArgument, n, maxBatch)
+	}
+	return nil
+}
+
+// commandLevers is thrustmap_command_levers on an acquired handle: put
+// receives each lever's command, in order. Every lever id and the conditions'
+// bleed bits are checked before any lever moves. It allocates nothing unless
+// it fails.
+func (h *handle) commandLevers(levers, raws []int32, in conditions, put func(i int, cmd thrustmap.LeverCommand)) int {
+	if err := checkBatch(len(levers)); err != nil {
+		return h.fail(err)
+	}
+	if len(raws) != len(levers) {
+		return h.fail(fmt.Errorf("%w: thrustmap_command_levers: %d levers, %d raw counts", errArgument, len(levers), len(raws)))
+	}
+	var slots [maxBatch]*leverSlot
+	for i, id := range levers {
+		l, err := h.lever(int(id))
+		if err != nil {
+			return h.fail(fmt.Errorf("thrustmap_command_levers: levers[%d]: %w", i, err))
+		}
+		slots[i] = l
+	}
 	c, err := h.conditions(in)
 	if err != nil {
-		return 0, h.fail(err)
+		return h.fail(err)
+	}
+	for i, id := range levers {
+		cmd, err := h.run(slots[i], int(id), int(raws[i]), c)
+		if err != nil {
+			return h.fail(fmt.Errorf("thrustmap_command_levers: levers[%d] = %d, raw %d: %w", i, id, raws[i], err))
+		}
+		put(i, cmd)
+	}
+	return codeOK
+}
+
+// run commands lever (slot l) under its lock. A panic in Command resets the
+// lever's state, which it may have left half updated, and goes on up to the
+// export's recover.
+func (h *handle) run(l *leverSlot, lever, raw int, c thrustmap.Conditions) (thrustmap.LeverCommand, error) {
+	l.mu.Lock()
+	done := false
+	defer func() {
+		if !done {
+			l.state.Reset()
+		}
+		l.mu.Unlock()
+	}()
+	cmd, err := h.model.Command(&l.state, lever, float64(raw), c)
+	done = true
+	return cmd, err
+}
+
+// target is thrustmap_target and thrustmap_target_detail on an acquired
+// handle. rating may alias C memory: nothing keeps it.
+func (h *handle) target(rating string, in conditions) (thrustmap.Result, int) {
+	c, err := h.conditions(in)
+	if err != nil {
+		return thrustmap.Result{}, h.fail(err)
 	}
 	res, err := h.model.Profile().Target(rating, c)
 	if err != nil {
-		return 0, h.fail(err)
+		return res, h.fail(err)
 	}
-	return res.Value, codeOK
+	return res, codeOK
 }
 
 // reset is thrustmap_reset on an acquired handle.
@@ -205,29 +304,57 @@ func (h *handle) reset(lever int) int {
 	return codeOK
 }
 
+// bleedBit is thrustmap_bleed_bit on an acquired handle. name may alias C
+// memory: nothing keeps it.
+func (h *handle) bleedBit(name string) int {
+	for i, b := range h.model.Profile().Bleeds() {
+		if b == name {
+			return i
+		}
+	}
+	_, err := h.model.Profile().BleedSet(name)
+	return h.fail(fmt.Errorf("%w: thrustmap_bleed_bit: %w", errArgument, err))
+}
+
 // gateName is thrustmap_gate_name on an acquired handle: the C string of
 // gate i, or nil for -1 and (with an error) for a gate out of range.
 func (h *handle) gateName(i int) *C.char {
 	if i == -1 {
 		return nil
 	}
-	if i < 0 || i >= len(h.gateNames) {
-		h.fail(fmt.Errorf("%w: thrustmap_gate_name: gate %d is out of range: the profile has %d gates (0 to %d)",
-			errArgument, i, len(h.gateNames), len(h.gateNames)-1))
+	return h.name("thrustmap_gate_name", "gate", i, h.gateNames)
+}
+
+// name returns names[i], or nil with an error naming fn and what is indexed.
+func (h *handle) name(fn, what string, i int, names []*C.char) *C.char {
+	if i < 0 || i >= len(names) {
+		h.fail(fmt.Errorf("%w: %s: %s %d is out of range: the profile has %d (0 to %d)",
+			errArgument, fn, what, i, len(names), len(names)-1))
 		return nil
 	}
-	return h.gateNames[i]
+	return names[i]
+}
+
+// leverIDsInto is thrustmap_lever_ids on an acquired handle: it copies as
+// many ids as fit into dst and returns how many levers there are.
+func (h *handle) leverIDsInto(dst []int32) int {
+	for i := range min(len(dst), len(h.leverIDs)) {
+		dst[i] = int32(h.leverIDs[i])
+	}
+	return len(h.leverIDs)
 }
 
 // lever returns lever id's state or an error naming the calibration.
 func (h *handle) lever(id int) (*leverSlot, error) {
-	if l := h.levers[id]; l != nil {
-		return l, nil
+	for i, x := range h.leverIDs {
+		if x == id {
+			return &h.levers[i], nil
+		}
 	}
 	if h.model.Calibration() == nil {
 		return nil, fmt.Errorf("%w: lever %d: the handle was opened without a calibration", errArgument, id)
 	}
-	return nil, fmt.Errorf("%w: lever %d is not in calibration %s", errArgument, id, h.model.Calibration().Source())
+	return nil, fmt.Errorf("%w: lever %d is not in calibration %s (its levers are %v)", errArgument, id, h.model.Calibration().Source(), h.leverIDs)
 }
 
 // conditions converts conditions to the library's, checking the bleed bits.

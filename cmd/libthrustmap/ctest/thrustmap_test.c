@@ -14,12 +14,27 @@
  *     sweep  LEVER N        followed by N lines:
  *     K RAW TLA VALUE GATE REVERSE FLAG_NAMES CLAMPED_NAMES    (names: a,b or -)
  *     reset  LEVER K RAW_IN RAW_BAND GATE_BAND GATE_AFTER_RESET
+ *     abi    VERSION
+ *     profile P PROFILE_PATH CALIBRATION_PATH
+ *     info   P PARAMETER UNIT RATINGS GATES BLEEDS LEVERS     (counts)
+ *     rating P I NAME
+ *     bleed  P I NAME
+ *     lever  P I ID
+ *     dcond  K P ALT_FT OAT_C MACH BLEEDS ON_GROUND ASSUMED_SET ASSUMED_C
+ *     detail K RATING VALUE FLAG_NAMES CLAMPED_NAMES EVALUATED APPLIED REASON_NAMES
+ *            ASSUMED_C EFFECTIVE_C VALUE_FULL THRUST_CHECKED THRUST_REDUCTION_PCT
  *
- * A sweep is one lever's samples in order, from a fresh state. Prints the
- * failures and "ok: N checks" and exits 0 when all pass, 1 otherwise.
+ * A sweep is one lever's samples in order, from a fresh state. Profile 0 is
+ * the demo with its calibration ("demo", "demo"); profile 1 is the test
+ * profile the profile line names. A detail line is a thrustmap.Result from
+ * Profile.Target at detail conditions K, on the profile those name. Every
+ * value is compared bit for bit. Prints the failures and "ok: N checks" and
+ * exits 0 when all pass, 1 otherwise.
  */
 #define _POSIX_C_SOURCE 200809L
 
+#include <inttypes.h>
+#include <limits.h>
 #include <math.h>
 #include <pthread.h>
 #include <stdarg.h>
@@ -35,7 +50,11 @@
 #define MAX_TARGETS 256
 #define MAX_LEVERS 4
 #define MAX_RESETS 8
-#define TOL 1e-9
+#define MAX_DCONDS 16
+#define MAX_DETAILS 128
+#define MAX_NAMES 64
+#define NPROFILES 2
+#define TOL 1e-9 /* for the ranges of shared levers only; values are compared exactly */
 
 typedef struct {
     int cond, raw;
@@ -60,12 +79,39 @@ typedef struct {
     int lever, cond, raw_in, raw_band, gate_band, gate_after;
 } reset_case;
 
+/* What a handle holds (info, rating, bleed and lever lines). */
+typedef struct {
+    char parameter[16], unit[16];
+    int nratings, ngates, nbleeds, nlevers;
+    char ratings[MAX_NAMES][64], bleeds[MAX_NAMES][64];
+    int levers[MAX_LEVERS];
+    int seen; /* an info line was read */
+} profile_info;
+
+typedef struct {
+    int profile;
+    thrustmap_conditions c;
+} dcond;
+
+typedef struct {
+    int cond;
+    char rating[64];
+    double value, assumed_c, effective_c, value_full, pct;
+    uint32_t flags, reasons;
+    int evaluated, applied, thrust_checked;
+} detail;
+
 static int ngates, nconds, ntargets, nsweeps, nresets;
 static char gate_names[MAX_GATES][64];
 static thrustmap_conditions conds[MAX_CONDS];
 static target targets[MAX_TARGETS];
 static sweep sweeps[MAX_LEVERS];
 static reset_case resets[MAX_RESETS];
+static int abi = -1, ndconds, ndetails;
+static char profile1[512], calibration1[512];
+static profile_info infos[NPROFILES];
+static dcond dconds[MAX_DCONDS];
+static detail details[MAX_DETAILS];
 
 static atomic_long checks;
 static atomic_long failures;
@@ -95,28 +141,50 @@ static int check_at(int line, int ok, const char *fmt, ...)
     return 0;
 }
 
-static int near(double a, double b) { return fabs(a - b) <= TOL; }
+/* same: bit-equal values (NaN equals NaN); the library must give exactly what
+ * the Go API gave. */
+static int same(double a, double b) { return a == b || (isnan(a) && isnan(b)); }
 
-/* name_bits maps a list of names ("a,b" or "-") to bits of the header's
- * constants; unknown names are a failure. */
-static uint32_t name_bits(const char *list, int clamped)
+/* The kinds of names in the expected file, mapped to the header's bits. */
+enum { FLAGS, CLAMPED, REASONS };
+
+typedef struct {
+    const char *name;
+    uint32_t bit;
+} named_bit;
+
+static const named_bit flag_bits[] = {
+    {"raised", THRUSTMAP_FLAG_RAISED},
+    {"limited", THRUSTMAP_FLAG_LIMITED},
+    {"interlock", THRUSTMAP_FLAG_INTERLOCK},
+    {"fallback", THRUSTMAP_FLAG_FALLBACK},
+    {NULL, 0},
+};
+static const named_bit clamp_bits[] = {
+    {"altitude", THRUSTMAP_CLAMPED_ALTITUDE},
+    {"temperature", THRUSTMAP_CLAMPED_TEMPERATURE},
+    {"mach", THRUSTMAP_CLAMPED_MACH},
+    {"raw", THRUSTMAP_CLAMPED_RAW},
+    {"device", THRUSTMAP_CLAMPED_DEVICE},
+    {"lever", THRUSTMAP_CLAMPED_LEVER},
+    {NULL, 0},
+};
+/* The reason codes as the Go API and the command line's JSON name them. */
+static const named_bit reason_bits[] = {
+    {"ta_not_above_oat", THRUSTMAP_REASON_TA_NOT_ABOVE_OAT},
+    {"ta_below_corner", THRUSTMAP_REASON_TA_BELOW_CORNER},
+    {"ta_above_max", THRUSTMAP_REASON_TA_ABOVE_MAX},
+    {"reduction_limited", THRUSTMAP_REASON_REDUCTION_LIMITED},
+    {"reduction_not_checked", THRUSTMAP_REASON_REDUCTION_NOT_CHECKED},
+    {NULL, 0},
+};
+
+/* name_bits maps a list of names ("a,b" or "-") of a kind to bits of the
+ * header's constants (clamped inputs with THRUSTMAP_FLAG_CLAMPED); unknown
+ * names are a failure. */
+static uint32_t name_bits(const char *list, int kind)
 {
-    static const struct {
-        const char *name;
-        uint32_t bit;
-    } flag_bits[] = {
-        {"raised", THRUSTMAP_FLAG_RAISED},
-        {"limited", THRUSTMAP_FLAG_LIMITED},
-        {"interlock", THRUSTMAP_FLAG_INTERLOCK},
-        {"fallback", THRUSTMAP_FLAG_FALLBACK},
-    },
-      clamp_bits[] = {
-          {"altitude", THRUSTMAP_CLAMPED_ALTITUDE},
-          {"temperature", THRUSTMAP_CLAMPED_TEMPERATURE},
-          {"mach", THRUSTMAP_CLAMPED_MACH},
-          {"raw", THRUSTMAP_CLAMPED_RAW},
-          {"device", THRUSTMAP_CLAMPED_DEVICE},
-      };
+    const named_bit *table = kind == FLAGS ? flag_bits : kind == CLAMPED ? clamp_bits : reason_bits;
     uint32_t bits = 0;
     if (strcmp(list, "-") == 0)
         return 0;
@@ -127,16 +195,13 @@ static uint32_t name_bits(const char *list, int clamped)
         if (next)
             *next++ = '\0';
         int found = 0;
-        if (clamped) {
-            for (size_t i = 0; i < sizeof clamp_bits / sizeof clamp_bits[0]; i++)
-                if (strcmp(name, clamp_bits[i].name) == 0)
-                    bits |= clamp_bits[i].bit | THRUSTMAP_FLAG_CLAMPED, found = 1;
-        } else {
-            for (size_t i = 0; i < sizeof flag_bits / sizeof flag_bits[0]; i++)
-                if (strcmp(name, flag_bits[i].name) == 0)
-                    bits |= flag_bits[i].bit, found = 1;
-        }
-        check(found, "expected file names unknown %s %s", clamped ? "clamped input" : "flag", name);
+        for (const named_bit *b = table; b->name; b++)
+            if (strcmp(name, b->name) == 0) {
+                bits |= b->bit | (kind == CLAMPED ? THRUSTMAP_FLAG_CLAMPED : 0);
+                found = 1;
+            }
+        check(found, "expected file names unknown %s %s",
+              kind == FLAGS ? "flag" : kind == CLAMPED ? "clamped input" : "reason", name);
     }
     return bits;
 }
@@ -163,11 +228,9 @@ static int load(const char *path)
         } else if (strcmp(word, "cond") == 0 && nconds < MAX_CONDS) {
             thrustmap_conditions *c = &conds[nconds];
             int k;
-            unsigned bleeds;
-            ok = sscanf(line, "cond %d %lf %lf %lf %u %d %d %lf", &k, &c->alt_ft, &c->oat_c, &c->mach, &bleeds,
-                        &c->on_ground, &c->assumed_set, &c->assumed_c) == 8 &&
+            ok = sscanf(line, "cond %d %lf %lf %lf %" SCNu64 " %d %d %lf", &k, &c->alt_ft, &c->oat_c, &c->mach,
+                        &c->bleeds, &c->on_ground, &c->assumed_set, &c->assumed_c) == 8 &&
                  k == nconds;
-            c->bleeds = bleeds;
             nconds++;
         } else if (strcmp(word, "target") == 0 && ntargets < MAX_TARGETS) {
             target *t = &targets[ntargets++];
@@ -193,10 +256,56 @@ static int load(const char *path)
                                   &r->gate, &r->reverse, fl, cl) == 8 &&
                      r->cond >= 0 && r->cond < nconds;
                 if (ok) {
-                    r->flags = name_bits(fl, 0) | name_bits(cl, 1);
+                    r->flags = name_bits(fl, FLAGS) | name_bits(cl, CLAMPED);
                     s->lo[r->cond] = fmin(s->lo[r->cond], r->value);
                     s->hi[r->cond] = fmax(s->hi[r->cond], r->value);
                 }
+            }
+        } else if (strcmp(word, "abi") == 0) {
+            ok = sscanf(line, "abi %d", &abi) == 1;
+        } else if (strcmp(word, "profile") == 0) {
+            ok = sscanf(line, "profile 1 %511s %511s", profile1, calibration1) == 2;
+        } else if (strcmp(word, "info") == 0) {
+            int p;
+            ok = sscanf(line, "info %d", &p) == 1 && p >= 0 && p < NPROFILES;
+            if (ok) {
+                profile_info *in = &infos[p];
+                ok = sscanf(line, "info %*d %15s %15s %d %d %d %d", in->parameter, in->unit, &in->nratings,
+                            &in->ngates, &in->nbleeds, &in->nlevers) == 6 &&
+                     in->nratings <= MAX_NAMES && in->nbleeds <= MAX_NAMES && in->nlevers <= MAX_LEVERS;
+                in->seen = 1;
+            }
+        } else if (strcmp(word, "rating") == 0 || strcmp(word, "bleed") == 0) {
+            int p, i;
+            char name[64];
+            ok = sscanf(line, "%*s %d %d %63s", &p, &i, name) == 3 && p >= 0 && p < NPROFILES && i >= 0 &&
+                 i < MAX_NAMES;
+            if (ok)
+                strcpy(word[0] == 'r' ? infos[p].ratings[i] : infos[p].bleeds[i], name);
+        } else if (strcmp(word, "lever") == 0) {
+            int p, i, id;
+            ok = sscanf(line, "lever %d %d %d", &p, &i, &id) == 3 && p >= 0 && p < NPROFILES && i >= 0 &&
+                 i < MAX_LEVERS;
+            if (ok)
+                infos[p].levers[i] = id;
+        } else if (strcmp(word, "dcond") == 0 && ndconds < MAX_DCONDS) {
+            dcond *d = &dconds[ndconds];
+            thrustmap_conditions *c = &d->c;
+            int k;
+            ok = sscanf(line, "dcond %d %d %lf %lf %lf %" SCNu64 " %d %d %lf", &k, &d->profile, &c->alt_ft, &c->oat_c,
+                        &c->mach, &c->bleeds, &c->on_ground, &c->assumed_set, &c->assumed_c) == 9 &&
+                 k == ndconds && d->profile >= 0 && d->profile < NPROFILES;
+            ndconds++;
+        } else if (strcmp(word, "detail") == 0 && ndetails < MAX_DETAILS) {
+            detail *d = &details[ndetails++];
+            char fl[128], cl[128], rs[256];
+            ok = sscanf(line, "detail %d %63s %lf %127s %127s %d %d %255s %lf %lf %lf %d %lf", &d->cond, d->rating,
+                        &d->value, fl, cl, &d->evaluated, &d->applied, rs, &d->assumed_c, &d->effective_c,
+                        &d->value_full, &d->thrust_checked, &d->pct) == 13 &&
+                 d->cond >= 0 && d->cond < ndconds;
+            if (ok) {
+                d->flags = name_bits(fl, FLAGS) | name_bits(cl, CLAMPED);
+                d->reasons = name_bits(rs, REASONS);
             }
         }
         if (!ok) {
@@ -206,7 +315,8 @@ static int load(const char *path)
         }
     }
     fclose(f);
-    return ngates > 0 && nconds > 0 && ntargets > 0 && nsweeps > 0 && nresets > 0;
+    return ngates > 0 && nconds > 0 && ntargets > 0 && nsweeps > 0 && nresets > 0 && abi > 0 && profile1[0] &&
+           infos[0].seen && infos[1].seen && ndetails > 0;
 }
 
 /* last_error returns handle h's last error message in a static-size buffer. */
@@ -223,6 +333,7 @@ typedef struct {
     int64_t h;
     const sweep *s;
     int exact; /* compare every sample; else (shared lever) only ranges */
+    int batch; /* through thrustmap_command_levers, one lever a call */
 } sweep_job;
 
 /* run_sweep drives one lever through its expected samples. */
@@ -234,11 +345,12 @@ static void *run_sweep(void *arg)
         const row *want = &s->rows[i];
         thrustmap_result got;
         memset(&got, 0xff, sizeof got);
-        int rc = thrustmap_command(job->h, s->lever, want->raw, &conds[want->cond], &got);
+        int rc = job->batch ? thrustmap_command_levers(job->h, 1, &s->lever, &want->raw, &conds[want->cond], &got)
+                            : thrustmap_command(job->h, s->lever, want->raw, &conds[want->cond], &got);
         if (!check(rc == THRUSTMAP_OK, "lever %d raw %d cond %d: rc %d", s->lever, want->raw, want->cond, rc))
             continue;
         if (job->exact) {
-            check(near(got.tla_deg, want->tla) && near(got.value, want->value) && got.gate == want->gate &&
+            check(same(got.tla_deg, want->tla) && same(got.value, want->value) && got.gate == want->gate &&
                       got.reverse == want->reverse && got.flags == want->flags,
                   "lever %d raw %d cond %d (sample %d): got tla %.17g value %.17g gate %d reverse %d flags %#x; "
                   "want tla %.17g value %.17g gate %d reverse %d flags %#x",
@@ -280,7 +392,7 @@ static void *reader(void *arg)
         for (int i = 0; i < ntargets; i++) {
             double v = NAN;
             int rc = thrustmap_target(h, targets[i].rating, &conds[targets[i].cond], &v);
-            check(rc == THRUSTMAP_OK && near(v, targets[i].value), "concurrent target %s cond %d: rc %d value %.17g",
+            check(rc == THRUSTMAP_OK && same(v, targets[i].value), "concurrent target %s cond %d: rc %d value %.17g",
                   targets[i].rating, targets[i].cond, rc, v);
         }
         for (int g = 0; g < ngates; g++) {
@@ -429,6 +541,187 @@ static void test_errors(int64_t h)
     }
 }
 
+/* ---------------------------------------------------------------- version 2 */
+
+/* test_info checks what handle h of profile p holds against the Go API. */
+static void test_info(int64_t h, int p)
+{
+    const profile_info *in = &infos[p];
+    const char *s = thrustmap_parameter(h);
+    check(s && strcmp(s, in->parameter) == 0, "profile %d: parameter %s, want %s", p, s ? s : "NULL", in->parameter);
+    s = thrustmap_unit(h);
+    check(s && strcmp(s, in->unit) == 0, "profile %d: unit %s, want %s", p, s ? s : "NULL", in->unit);
+    check(thrustmap_rating_count(h) == in->nratings, "profile %d: %d ratings, want %d", p, thrustmap_rating_count(h),
+          in->nratings);
+    for (int i = 0; i < in->nratings; i++) {
+        s = thrustmap_rating_name(h, i);
+        check(s && strcmp(s, in->ratings[i]) == 0, "profile %d: rating %d is %s, want %s", p, i, s ? s : "NULL",
+              in->ratings[i]);
+    }
+    check(thrustmap_gate_count(h) == in->ngates, "profile %d: %d gates, want %d", p, thrustmap_gate_count(h),
+          in->ngates);
+    check(p != 0 || in->ngates == ngates, "the demo's gate lines and its gate count agree");
+    check(thrustmap_bleed_count(h) == in->nbleeds, "profile %d: %d bleeds, want %d", p, thrustmap_bleed_count(h),
+          in->nbleeds);
+    for (int i = 0; i < in->nbleeds; i++) {
+        s = thrustmap_bleed_name(h, i);
+        check(s && strcmp(s, in->bleeds[i]) == 0, "profile %d: bleed %d is %s, want %s", p, i, s ? s : "NULL",
+              in->bleeds[i]);
+        check(thrustmap_bleed_bit(h, in->bleeds[i]) == i, "profile %d: bleed %s has bit %d, want %d", p,
+              in->bleeds[i], thrustmap_bleed_bit(h, in->bleeds[i]), i);
+    }
+    check(thrustmap_lever_count(h) == in->nlevers, "profile %d: %d levers, want %d", p, thrustmap_lever_count(h),
+          in->nlevers);
+    check(thrustmap_lever_ids(h, NULL, 0) == in->nlevers, "profile %d: lever_ids(NULL, 0) gives the count", p);
+    int ids[MAX_LEVERS + 1];
+    for (int i = 0; i <= MAX_LEVERS; i++)
+        ids[i] = INT_MIN;
+    check(thrustmap_lever_ids(h, ids, MAX_LEVERS + 1) == in->nlevers, "profile %d: lever_ids", p);
+    for (int i = 0; i < in->nlevers; i++)
+        check(ids[i] == in->levers[i], "profile %d: lever %d has id %d, want %d", p, i, ids[i], in->levers[i]);
+    check(ids[in->nlevers] == INT_MIN, "profile %d: lever_ids wrote past the levers", p);
+    if (in->nlevers > 1) {
+        int one[2] = {INT_MIN, INT_MIN};
+        check(thrustmap_lever_ids(h, one, 1) == in->nlevers && one[0] == in->levers[0] && one[1] == INT_MIN,
+              "profile %d: lever_ids into one slot writes one id and returns the count", p);
+    }
+}
+
+/* test_details checks every target detail against Profile.Target, and
+ * thrustmap_target against its value. hs[p] is a handle of profile p. */
+static void test_details(const int64_t hs[NPROFILES])
+{
+    char buf[512];
+    for (int i = 0; i < ndetails; i++) {
+        const detail *d = &details[i];
+        const dcond *dc = &dconds[d->cond];
+        int64_t h = hs[dc->profile];
+        thrustmap_target_result got;
+        memset(&got, 0xab, sizeof got);
+        int rc = thrustmap_target_detail(h, d->rating, &dc->c, &got);
+        if (!check(rc == THRUSTMAP_OK, "detail %s at %d: rc %d (%s)", d->rating, d->cond, rc,
+                   last_error(h, buf, sizeof buf)))
+            continue;
+        /* What the header gives where the method did not run or had no
+         * thrust grid. */
+        double assumed = d->evaluated ? d->assumed_c : NAN, effective = d->evaluated ? d->effective_c : NAN;
+        double full = d->evaluated ? d->value_full : d->value;
+        double pct = d->evaluated && d->thrust_checked ? d->pct : NAN;
+        check(same(got.value, d->value) && got.flags == d->flags && got.reduction_evaluated == d->evaluated &&
+                  got.reduction_applied == d->applied && got.reasons == d->reasons && same(got.assumed_c, assumed) &&
+                  same(got.effective_c, effective) && same(got.value_full, full) &&
+                  same(got.thrust_reduction_pct, pct),
+              "detail %s at %d: got value %.17g flags %#x evaluated %d applied %d reasons %#x assumed %.17g "
+              "effective %.17g full %.17g pct %.17g; want %.17g %#x %d %d %#x %.17g %.17g %.17g %.17g",
+              d->rating, d->cond, got.value, (unsigned)got.flags, got.reduction_evaluated, got.reduction_applied,
+              (unsigned)got.reasons, got.assumed_c, got.effective_c, got.value_full, got.thrust_reduction_pct,
+              d->value, (unsigned)d->flags, d->evaluated, d->applied, (unsigned)d->reasons, assumed, effective, full,
+              pct);
+        double v = NAN;
+        check(thrustmap_target(h, d->rating, &dc->c, &v) == THRUSTMAP_OK && same(v, d->value),
+              "target %s at %d: %.17g, want %.17g", d->rating, d->cond, v, d->value);
+    }
+}
+
+/* same_result compares two commands field by field, bit for bit. */
+static int same_result(const thrustmap_result *a, const thrustmap_result *b)
+{
+    return same(a->tla_deg, b->tla_deg) && same(a->value, b->value) && a->gate == b->gate &&
+           a->reverse == b->reverse && a->flags == b->flags;
+}
+
+/* test_batch: thrustmap_command_levers with every lever of a frame gives
+ * what the Go API gives each lever (the sweeps, side by side), and exactly
+ * what single calls give in the same order, also with a lever twice and
+ * with the most levers a call takes. */
+static void test_batch(void)
+{
+    char buf[512];
+    int64_t h = thrustmap_open("demo", "demo");
+    if (!check(h > 0, "open for the batch test: %s", last_error(0, buf, sizeof buf)))
+        return;
+    int ok = nsweeps > 1;
+    for (int k = 1; k < nsweeps; k++) {
+        ok = ok && sweeps[k].n == sweeps[0].n;
+        for (int i = 0; ok && i < sweeps[0].n; i++)
+            ok = sweeps[k].rows[i].cond == sweeps[0].rows[i].cond;
+    }
+    if (check(ok, "the sweeps have the same frames, so they run side by side")) {
+        int levers[MAX_LEVERS], raws[MAX_LEVERS];
+        thrustmap_result out[MAX_LEVERS];
+        for (int i = 0; i < sweeps[0].n; i++) {
+            for (int k = 0; k < nsweeps; k++)
+                levers[k] = sweeps[k].lever, raws[k] = sweeps[k].rows[i].raw;
+            int rc = thrustmap_command_levers(h, nsweeps, levers, raws, &conds[sweeps[0].rows[i].cond], out);
+            if (!check(rc == THRUSTMAP_OK, "batch frame %d: rc %d (%s)", i, rc, last_error(h, buf, sizeof buf)))
+                break;
+            for (int k = 0; k < nsweeps; k++) {
+                const row *want = &sweeps[k].rows[i];
+                thrustmap_result w = {want->tla, want->value, want->gate, want->reverse, want->flags};
+                check(same_result(&out[k], &w),
+                      "batch frame %d lever %d raw %d: got tla %.17g value %.17g gate %d flags %#x; want tla %.17g "
+                      "value %.17g gate %d flags %#x",
+                      i, levers[k], raws[k], out[k].tla_deg, out[k].value, out[k].gate, (unsigned)out[k].flags,
+                      w.tla_deg, w.value, w.gate, (unsigned)w.flags);
+            }
+        }
+    }
+    thrustmap_close(h);
+
+    int64_t a = thrustmap_open("demo", "demo"), b = thrustmap_open("demo", "demo");
+    if (!check(a > 0 && b > 0, "open two handles for the batch test"))
+        return;
+    uint32_t rnd = 12345;
+    int levers[THRUSTMAP_MAX_BATCH], raws[THRUSTMAP_MAX_BATCH];
+    thrustmap_result out[THRUSTMAP_MAX_BATCH];
+    for (int frame = 0; frame < 3000; frame++) {
+        int n = frame % 50 == 0 ? THRUSTMAP_MAX_BATCH : 1 + frame % 4;
+        const thrustmap_conditions *c = &conds[(frame / 100) % nconds];
+        for (int k = 0; k < n; k++) {
+            rnd = rnd * 1664525u + 1013904223u; /* a linear congruential generator (Numerical Recipes) */
+            levers[k] = 1 + (int)(rnd >> 31);
+            raws[k] = 200 + (int)((rnd >> 8) % 3700);
+        }
+        int rc = thrustmap_command_levers(a, n, levers, raws, c, out);
+        if (!check(rc == THRUSTMAP_OK, "frame %d: batch of %d: rc %d (%s)", frame, n, rc,
+                   last_error(a, buf, sizeof buf)))
+            break;
+        for (int k = 0; k < n; k++) {
+            thrustmap_result one;
+            rc = thrustmap_command(b, levers[k], raws[k], c, &one);
+            check(rc == THRUSTMAP_OK && same_result(&out[k], &one),
+                  "frame %d: batch lever %d (%d of %d) raw %d: tla %.17g value %.17g gate %d; single: tla %.17g value "
+                  "%.17g gate %d",
+                  frame, levers[k], k, n, raws[k], out[k].tla_deg, out[k].value, out[k].gate, one.tla_deg, one.value,
+                  one.gate);
+        }
+    }
+    thrustmap_close(a);
+    thrustmap_close(b);
+}
+
+/* test_compute_error: on the test profile no gate is active in the air, a
+ * computation error on valid arguments. */
+static void test_compute_error(void)
+{
+    char buf[512];
+    int64_t h = thrustmap_open(profile1, calibration1);
+    if (!check(h > 0, "open %s with %s: %s", profile1, calibration1, last_error(0, buf, sizeof buf)))
+        return;
+    thrustmap_conditions air = {.alt_ft = 5000, .oat_c = 5}, ground = {.oat_c = 15, .on_ground = 1};
+    thrustmap_result out;
+    int lever = 5, raw = 500;
+    check(thrustmap_command(h, 5, 500, &ground, &out) == THRUSTMAP_OK, "lever 5 on the ground");
+    check(thrustmap_command(h, 5, 500, &air, &out) == THRUSTMAP_ECOMPUTE, "lever 5 in the air: ECOMPUTE");
+    check(strstr(last_error(h, buf, sizeof buf), "no gate is active") != NULL, "ECOMPUTE message: %s", buf);
+    check(thrustmap_command_levers(h, 1, &lever, &raw, &air, &out) == THRUSTMAP_ECOMPUTE, "batch in the air");
+    check(strstr(last_error(h, buf, sizeof buf), "levers[0] = 5") && strstr(buf, "no gate is active"),
+          "batch ECOMPUTE message names the lever: %s", buf);
+    check(thrustmap_command(h, 1, 500, &ground, &out) == THRUSTMAP_EINVAL, "lever 1 is not in this calibration");
+    test_info(h, 1);
+    thrustmap_close(h);
+}
+
 /* ---------------------------------------------------------------- main */
 
 int main(int argc, char **argv)
@@ -443,6 +736,8 @@ int main(int argc, char **argv)
     }
     char buf[512];
 
+    check(thrustmap_abi_version() == THRUSTMAP_ABI_VERSION && abi == THRUSTMAP_ABI_VERSION,
+          "library version %d, header %d, Go %d", thrustmap_abi_version(), THRUSTMAP_ABI_VERSION, abi);
     int64_t h = thrustmap_open("demo", "demo");
     if (h <= 0) {
         fprintf(stderr, "thrustmap_open(demo, demo): %s\n", last_error(0, buf, sizeof buf));
@@ -461,14 +756,14 @@ int main(int argc, char **argv)
     for (int i = 0; i < ntargets; i++) {
         double v = NAN;
         int rc = thrustmap_target(h, targets[i].rating, &conds[targets[i].cond], &v);
-        check(rc == THRUSTMAP_OK && near(v, targets[i].value), "target %s cond %d: rc %d value %.17g want %.17g (%s)",
+        check(rc == THRUSTMAP_OK && same(v, targets[i].value), "target %s cond %d: rc %d value %.17g want %.17g (%s)",
               targets[i].rating, targets[i].cond, rc, v, targets[i].value, rc ? last_error(h, buf, sizeof buf) : "");
     }
 
     /* 1. Each lever on its own thread, in parallel: exact values. */
     sweep_job exact[MAX_LEVERS];
     for (int i = 0; i < nsweeps; i++)
-        exact[i] = (sweep_job){h, &sweeps[i], 1};
+        exact[i] = (sweep_job){h, &sweeps[i], 1, 0};
     run_threads(run_sweep, exact, sizeof exact[0], nsweeps);
 
     /* 2. Several threads on the same levers at once, plus a reader. */
@@ -476,15 +771,18 @@ int main(int argc, char **argv)
     int nshared = 0;
     for (int i = 0; i < nsweeps; i++)
         for (int k = 0; k < (i == 0 ? 4 : 2); k++)
-            shared[nshared++] = (sweep_job){h, &sweeps[i], 0};
+            shared[nshared++] = (sweep_job){h, &sweeps[i], 0, i == 1};
     pthread_t rd;
     pthread_create(&rd, NULL, reader, &h);
     run_threads(run_sweep, shared, sizeof shared[0], nshared);
     pthread_join(rd, NULL);
 
-    /* 3. After a reset, each lever gives the exact values again. */
-    for (int i = 0; i < nsweeps; i++)
+    /* 3. After a reset, each lever gives the exact values again, also through
+     * thrustmap_command_levers. */
+    for (int i = 0; i < nsweeps; i++) {
         check(thrustmap_reset(h, sweeps[i].lever) == THRUSTMAP_OK, "reset lever %d", sweeps[i].lever);
+        exact[i].batch = 1;
+    }
     run_threads(run_sweep, exact, sizeof exact[0], nsweeps);
 
     /* 4. Reset forgets the reported gate: in the hysteresis band a captured
@@ -506,19 +804,31 @@ int main(int argc, char **argv)
     /* 5. Error paths. */
     test_errors(h);
 
-    /* 6. Without a calibration only targets work. */
+    /* 6. Version 2: what a handle holds, target details (on the demo and the
+     * test profile), every lever of a frame in one call, a computation
+     * error. */
+    test_info(h, 0);
+    int64_t hs[NPROFILES] = {h, thrustmap_open(profile1, NULL)};
+    if (check(hs[1] > 0, "open %s: %s", profile1, last_error(0, buf, sizeof buf))) {
+        test_details(hs);
+        thrustmap_close(hs[1]);
+    }
+    test_batch();
+    test_compute_error();
+
+    /* 7. Without a calibration only targets work. */
     int64_t t = thrustmap_open("demo", NULL);
     if (check(t > 0 && t != h, "open without a calibration")) {
         thrustmap_result out;
         double v = NAN;
         check(thrustmap_command(t, 1, 1000, &conds[0], &out) == THRUSTMAP_EINVAL, "command without a calibration");
         check(thrustmap_target(t, targets[0].rating, &conds[targets[0].cond], &v) == THRUSTMAP_OK &&
-                  near(v, targets[0].value),
+                  same(v, targets[0].value),
               "target without a calibration");
         thrustmap_close(t);
     }
 
-    /* 7. Close: later calls see a bad handle; closing twice is harmless. */
+    /* 8. Close: later calls see a bad handle; closing twice is harmless. */
     thrustmap_close(h);
     thrustmap_result out;
     check(thrustmap_command(h, 1, 1000, &conds[0], &out) == THRUSTMAP_EBADHANDLE, "command after close");
@@ -526,7 +836,7 @@ int main(int argc, char **argv)
     check(thrustmap_error(h, buf, sizeof buf) == THRUSTMAP_EBADHANDLE, "error after close");
     thrustmap_close(h);
 
-    /* 8. Close while other threads are calling. */
+    /* 9. Close while other threads are calling. */
     test_close_while_calling();
 
     long nfail = atomic_load(&failures);
