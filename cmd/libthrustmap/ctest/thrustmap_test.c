@@ -722,6 +722,183 @@ static void test_compute_error(void)
     thrustmap_close(h);
 }
 
+/* check_not_open calls every function with handle h, which is not open: each
+ * says so, and nothing crashes. */
+static void check_not_open(int64_t h, const char *what)
+{
+    char buf[256];
+    thrustmap_result out;
+    thrustmap_target_result tr;
+    double v;
+    int ids[4], lever = 1, raw = 1000;
+    check(thrustmap_command(h, 1, 1000, &conds[0], &out) == THRUSTMAP_EBADHANDLE, "%s: command", what);
+    check(thrustmap_error(0, buf, sizeof buf) > 0 && strstr(buf, "not open"), "%s: message %s", what, buf);
+    check(thrustmap_command_levers(h, 1, &lever, &raw, &conds[0], &out) == THRUSTMAP_EBADHANDLE,
+          "%s: command_levers", what);
+    check(thrustmap_reset(h, 1) == THRUSTMAP_EBADHANDLE, "%s: reset", what);
+    check(thrustmap_target(h, "takeoff", &conds[0], &v) == THRUSTMAP_EBADHANDLE, "%s: target", what);
+    check(thrustmap_target_detail(h, "takeoff", &conds[0], &tr) == THRUSTMAP_EBADHANDLE, "%s: target_detail", what);
+    check(thrustmap_bleed_bit(h, "wing-anti-ice") == THRUSTMAP_EBADHANDLE, "%s: bleed_bit", what);
+    check(thrustmap_bleed_count(h) == THRUSTMAP_EBADHANDLE, "%s: bleed_count", what);
+    check(thrustmap_bleed_name(h, 0) == NULL, "%s: bleed_name", what);
+    check(thrustmap_parameter(h) == NULL, "%s: parameter", what);
+    check(thrustmap_unit(h) == NULL, "%s: unit", what);
+    check(thrustmap_rating_count(h) == THRUSTMAP_EBADHANDLE, "%s: rating_count", what);
+    check(thrustmap_rating_name(h, 0) == NULL, "%s: rating_name", what);
+    check(thrustmap_gate_count(h) == THRUSTMAP_EBADHANDLE, "%s: gate_count", what);
+    check(thrustmap_gate_name(h, 0) == NULL, "%s: gate_name", what);
+    check(thrustmap_lever_count(h) == THRUSTMAP_EBADHANDLE, "%s: lever_count", what);
+    check(thrustmap_lever_ids(h, ids, 4) == THRUSTMAP_EBADHANDLE, "%s: lever_ids", what);
+    if (h != 0)
+        check(thrustmap_error(h, buf, sizeof buf) == THRUSTMAP_EBADHANDLE, "%s: error", what);
+    thrustmap_close(h); /* closing what is not open does nothing */
+}
+
+/* expect_einval checks that a call returned THRUSTMAP_EINVAL with a message
+ * on handle h containing want. */
+#define expect_einval(h, rc, want, ...) expect_einval_at(__LINE__, (h), (rc), (want), __VA_ARGS__)
+
+static void expect_einval_at(int line, int64_t h, int rc, const char *want, const char *what)
+{
+    char buf[512];
+    last_error(h, buf, sizeof buf);
+    check_at(line, rc == THRUSTMAP_EINVAL && strstr(buf, want) != NULL, "%s: rc %d, message \"%s\", want EINVAL and \"%s\"",
+             what, rc, buf, want);
+}
+
+/* test_faults drives every entry point with what a plugin may get wrong:
+ * NULL pointers, unknown names, out-of-range counts and indexes, non-finite
+ * numbers, bleed bits the profile lacks. Each gives THRUSTMAP_EINVAL and a
+ * message, and leaves the outputs alone. */
+static void test_faults(int64_t h)
+{
+    char buf[512];
+    thrustmap_result out[THRUSTMAP_MAX_BATCH + 1], saved[THRUSTMAP_MAX_BATCH + 1];
+    thrustmap_target_result tr, tr_saved;
+    double v;
+    int levers[THRUSTMAP_MAX_BATCH + 1], raws[THRUSTMAP_MAX_BATCH + 1];
+    for (int i = 0; i <= THRUSTMAP_MAX_BATCH; i++)
+        levers[i] = 1 + i % 2, raws[i] = 1000 + 10 * i;
+    memset(out, 0x5a, sizeof out);
+    memcpy(saved, out, sizeof out);
+    memset(&tr, 0x5a, sizeof tr);
+    tr_saved = tr;
+    const thrustmap_conditions *c0 = &conds[0];
+
+    /* Handles that are not open. */
+    check_not_open(0, "handle 0");
+    check_not_open(-3, "handle -3");
+    check_not_open(987654321, "handle 987654321");
+    check_not_open(INT64_MAX, "handle INT64_MAX");
+    int64_t closed = thrustmap_open("demo", "demo");
+    thrustmap_close(closed);
+    check_not_open(closed, "a closed handle");
+
+    /* NULL pointers. */
+    check(thrustmap_open(NULL, NULL) == 0, "open(NULL, NULL)");
+    expect_einval(h, thrustmap_command_levers(h, 2, NULL, raws, c0, out), "NULL", "command_levers levers NULL");
+    expect_einval(h, thrustmap_command_levers(h, 2, levers, NULL, c0, out), "NULL", "command_levers raws NULL");
+    expect_einval(h, thrustmap_command_levers(h, 2, levers, raws, NULL, out), "NULL", "command_levers conditions NULL");
+    expect_einval(h, thrustmap_command_levers(h, 2, levers, raws, c0, NULL), "NULL", "command_levers out NULL");
+    expect_einval(h, thrustmap_target(h, "takeoff", NULL, &v), "NULL", "target conditions NULL");
+    expect_einval(h, thrustmap_target_detail(h, NULL, c0, &tr), "NULL", "target_detail rating NULL");
+    expect_einval(h, thrustmap_target_detail(h, "takeoff", NULL, &tr), "NULL", "target_detail conditions NULL");
+    expect_einval(h, thrustmap_target_detail(h, "takeoff", c0, NULL), "NULL", "target_detail out NULL");
+    expect_einval(h, thrustmap_bleed_bit(h, NULL), "NULL", "bleed_bit NULL");
+    expect_einval(h, thrustmap_lever_ids(h, NULL, 1), "NULL", "lever_ids NULL with len 1");
+    expect_einval(h, thrustmap_lever_ids(h, levers, -1), "len < 0", "lever_ids len -1");
+
+    /* Unknown names. */
+    expect_einval(h, thrustmap_target_detail(h, "warp-speed", c0, &tr), "unknown rating", "target_detail warp-speed");
+    check(memcmp(&tr, &tr_saved, sizeof tr) == 0, "a failed target_detail leaves *out");
+    expect_einval(h, thrustmap_target_detail(h, "", c0, &tr), "unknown rating", "target_detail \"\"");
+    expect_einval(h, thrustmap_bleed_bit(h, "no-such-bleed"), "wing-anti-ice", "bleed_bit of an unknown name lists the bleeds");
+    expect_einval(h, thrustmap_bleed_bit(h, ""), "unknown bleed", "bleed_bit \"\"");
+    expect_einval(h, thrustmap_bleed_bit(h, "Wing-Anti-Ice"), "unknown bleed", "bleed names are case-sensitive");
+
+    /* Indexes out of range. */
+    int nr = thrustmap_rating_count(h), nb = thrustmap_bleed_count(h), ng = thrustmap_gate_count(h);
+    check(thrustmap_rating_name(h, -1) == NULL, "rating -1");
+    check(thrustmap_rating_name(h, nr) == NULL, "rating %d", nr);
+    check(strstr(last_error(h, buf, sizeof buf), "out of range") != NULL, "rating index message: %s", buf);
+    check(thrustmap_bleed_name(h, -1) == NULL && thrustmap_bleed_name(h, nb) == NULL &&
+              thrustmap_bleed_name(h, THRUSTMAP_MAX_BLEEDS) == NULL && thrustmap_bleed_name(h, INT_MAX) == NULL,
+          "bleed bits out of range");
+    check(strstr(last_error(h, buf, sizeof buf), "bleed bit") != NULL, "bleed index message: %s", buf);
+    check(thrustmap_gate_name(h, -2) == NULL && thrustmap_gate_name(h, ng) == NULL &&
+              thrustmap_gate_name(h, INT_MIN) == NULL,
+          "gates out of range");
+
+    /* Batch counts: n <= 0 or above THRUSTMAP_MAX_BATCH, before any array is
+     * read. */
+    const int bad_n[] = {0, -1, INT_MIN, THRUSTMAP_MAX_BATCH + 1, INT_MAX};
+    for (size_t i = 0; i < sizeof bad_n / sizeof bad_n[0]; i++) {
+        expect_einval(h, thrustmap_command_levers(h, bad_n[i], levers, raws, c0, out), "THRUSTMAP_MAX_BATCH",
+                      "command_levers with a bad n");
+        expect_einval(h, thrustmap_command_levers(h, bad_n[i], NULL, NULL, NULL, NULL), "THRUSTMAP_MAX_BATCH",
+                      "command_levers with a bad n and NULL arrays");
+    }
+    check(memcmp(out, saved, sizeof out) == 0, "failed batches leave out alone");
+    check(thrustmap_command_levers(h, THRUSTMAP_MAX_BATCH, levers, raws, c0, out) == THRUSTMAP_OK,
+          "a batch of THRUSTMAP_MAX_BATCH: %s", last_error(h, buf, sizeof buf));
+    check(memcmp(&out[THRUSTMAP_MAX_BATCH], &saved[THRUSTMAP_MAX_BATCH], sizeof out[0]) == 0,
+          "a full batch writes no more than n results");
+
+    /* An unknown lever anywhere in a batch: found before any lever moves.
+     * Lever 1 is held at raw 2000 by its deadband (2 counts); had the failed
+     * batch moved it to 3000, raw 2001 would be taken as a new reading. */
+    int64_t ref = thrustmap_open("demo", "demo");
+    thrustmap_result mine, theirs;
+    thrustmap_command(h, 1, 2000, c0, &mine);
+    thrustmap_command(ref, 1, 2000, c0, &theirs);
+    int bad_levers[3] = {1, 7, 2}, bad_raws[3] = {3000, 1000, 1000};
+    memcpy(out, saved, sizeof out);
+    expect_einval(h, thrustmap_command_levers(h, 3, bad_levers, bad_raws, c0, out), "levers[1]: bad argument: lever 7",
+                  "command_levers with lever 7");
+    check(memcmp(out, saved, sizeof out) == 0, "a batch with an unknown lever writes nothing");
+    thrustmap_command(h, 1, 2001, c0, &mine);
+    thrustmap_command(ref, 1, 2001, c0, &theirs);
+    check(same_result(&mine, &theirs), "a batch with an unknown lever moved none: tla %.17g, want %.17g",
+          mine.tla_deg, theirs.tla_deg);
+    thrustmap_close(ref);
+    int all_bad = INT_MIN;
+    expect_einval(h, thrustmap_command_levers(h, 1, &all_bad, raws, c0, out), "not in calibration",
+                  "command_levers with lever INT_MIN");
+    expect_einval(h, thrustmap_reset(h, INT_MAX), "not in calibration", "reset of lever INT_MAX");
+
+    /* Non-finite numbers in each field of the conditions, through every
+     * function that takes them. An assumed temperature is read only when
+     * assumed_set. */
+    const double bad_x[] = {NAN, INFINITY, -INFINITY};
+    for (int field = 0; field < 4; field++)
+        for (size_t i = 0; i < sizeof bad_x / sizeof bad_x[0]; i++) {
+            thrustmap_conditions c = *c0;
+            double *x = field == 0 ? &c.alt_ft : field == 1 ? &c.oat_c : field == 2 ? &c.mach : &c.assumed_c;
+            *x = bad_x[i];
+            c.assumed_set = field == 3;
+            char what[64];
+            snprintf(what, sizeof what, "field %d = %g", field, bad_x[i]);
+            expect_einval(h, thrustmap_command(h, 1, 1000, &c, &out[0]), "finite", what);
+            expect_einval(h, thrustmap_command_levers(h, 2, levers, raws, &c, out), "finite", what);
+            expect_einval(h, thrustmap_target(h, "takeoff", &c, &v), "finite", what);
+            expect_einval(h, thrustmap_target_detail(h, "takeoff", &c, &tr), "finite", what);
+        }
+    thrustmap_conditions c = *c0;
+    c.assumed_c = NAN; /* not set: not read */
+    check(thrustmap_target_detail(h, "takeoff", &c, &tr) == THRUSTMAP_OK && tr.reduction_evaluated == 0,
+          "an assumed temperature that is not set is not read");
+
+    /* Bleed bits the profile does not declare (the demo has three). */
+    const uint64_t bad_bleeds[] = {(uint64_t)1 << 3, (uint64_t)1 << 31, (uint64_t)1 << 32, (uint64_t)1 << 63,
+                                   UINT64_MAX};
+    for (size_t i = 0; i < sizeof bad_bleeds / sizeof bad_bleeds[0]; i++) {
+        c = *c0;
+        c.bleeds = bad_bleeds[i];
+        expect_einval(h, thrustmap_command_levers(h, 2, levers, raws, &c, out), "bleed bits", "unknown bleed bits");
+        expect_einval(h, thrustmap_target_detail(h, "takeoff", &c, &tr), "bleed bits", "unknown bleed bits");
+    }
+}
+
 /* ---------------------------------------------------------------- main */
 
 int main(int argc, char **argv)
@@ -803,6 +980,7 @@ int main(int argc, char **argv)
 
     /* 5. Error paths. */
     test_errors(h);
+    test_faults(h);
 
     /* 6. Version 2: what a handle holds, target details (on the demo and the
      * test profile), every lever of a frame in one call, a computation
