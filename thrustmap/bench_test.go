@@ -1,6 +1,7 @@
 package thrustmap
 
 import (
+	"math"
 	"math/rand/v2"
 	"strconv"
 	"strings"
@@ -79,7 +80,12 @@ func benchSamples(seed uint64, fixed bool) []benchSample {
 // and new conditions (a climb, drifting a little each frame), so the gate
 // targets are evaluated at every call. Budget: 100 ns/op, 0 allocs/op.
 func BenchmarkCommand(b *testing.B) {
-	m := benchModel(b)
+	benchCommands(b, benchModel(b), climbSamples())
+}
+
+// climbSamples are BenchmarkCommand's samples: the lever swept end to end
+// and back while the conditions drift, a new pair every frame.
+func climbSamples() []benchSample {
 	const frames = 4096
 	samples := make([]benchSample, frames)
 	for i := range samples {
@@ -88,7 +94,7 @@ func BenchmarkCommand(b *testing.B) {
 		samples[i] = benchSample{raw: 200 + 3700*float64(k)/(frames/2),
 			c: Conditions{AltitudeFt: alt, OATC: 25 - 0.002*alt, Mach: 0.3}}
 	}
-	benchCommands(b, m, samples)
+	return samples
 }
 
 // benchCommands feeds samples (a power-of-two count) through one lever
@@ -157,39 +163,123 @@ func BenchmarkCommandExpr(b *testing.B) {
 	sink = sum
 }
 
-// BenchmarkBaseline is the floor: raw → TLA by a hand-inlined linear search
-// over five points, then one bilinear look-up in a 12×12 table, no gates.
+// BenchmarkBaseline is the floor BenchmarkCommand is measured against: the
+// same samples (climbSamples) through only the work any implementation must
+// do for them, written out by hand for benchModel's profile: the deadband,
+// raw → TLA by binary search over the five calibration points, the gate's
+// capture zone or the two gates either side (a binary search over the
+// gates), their 12×12 look-ups with a binary search on each axis, and the
+// blend between the zones' edges. It first checks that it computes exactly
+// what Command computes on every sample, so it cannot skip work. Command
+// does more on top: `when` checks, the monotone rule (a gate's target is
+// raised to that of the gate nearer idle, so that gate is looked up too),
+// the reported gate's hysteresis, clamp reports and the redline.
 func BenchmarkBaseline(b *testing.B) {
-	raws := [...]float64{200, 1500, 2400, 3300, 3900}
-	tlas := [...]float64{0, 20, 27, 40, 55}
-	var alt, temp [12]float64
-	var vals [12][12]float64
-	for i := range 12 {
-		alt[i] = float64(i) * 1000
-		temp[i] = -40 + float64(i)*10
-		for j := range 12 {
-			vals[i][j] = 85 + float64(i)*0.3 + float64(j)*0.5
+	m := benchModel(b)
+	samples := climbSamples()
+	f := newBenchFloor()
+	var s LeverState
+	for i, x := range samples {
+		want, err := m.Command(&s, 1, x.raw, x.c)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if got := f.command(x.raw, &x.c); got != want.Value {
+			b.Fatalf("sample %d (raw %g, %+v): the floor gives %.17g, Command %.17g", i, x.raw, x.c, got, want.Value)
 		}
 	}
-	samples := benchSamples(1, false)
+	f.holding = false
+	mask := len(samples) - 1
 	b.ReportAllocs()
 	b.ResetTimer()
 	sum := 0.0
-	for n := 0; n < b.N; n++ {
-		x := &samples[n&1023]
-		k := 0
-		for k < 3 && raws[k+1] < x.raw {
-			k++
-		}
-		tla := tlas[k] + (tlas[k+1]-tlas[k])*(x.raw-raws[k])/(raws[k+1]-raws[k])
-		i := min(int(x.c.AltitudeFt/1000), 10)
-		j := min(int((x.c.OATC+40)/10), 10)
-		fa := (x.c.AltitudeFt - alt[i]) / 1000
-		ft := (x.c.OATC - temp[j]) / 10
-		v := (vals[i][j]*(1-ft)+vals[i][j+1]*ft)*(1-fa) + (vals[i+1][j]*(1-ft)+vals[i+1][j+1]*ft)*fa
-		sum += v + tla
+	for i := 0; i < b.N; i++ {
+		x := &samples[i&mask]
+		sum += f.command(x.raw, &x.c)
 	}
 	sink = sum
+}
+
+// benchFloor is benchModel written out by hand: its lever calibration,
+// gates (idle, climb, takeoff) and their ratings' tables.
+type benchFloor struct {
+	raw, tla  [5]float64
+	gate      [3]float64 // gate TLAs; every capture zone is ±1.5°
+	alt, temp [12]float64
+	vals      [3][12][12]float64
+	held      float64
+	holding   bool
+}
+
+func newBenchFloor() *benchFloor {
+	f := &benchFloor{
+		raw:  [5]float64{200, 1500, 2400, 3300, 3900},
+		tla:  [5]float64{0, 20, 27, 40, 55},
+		gate: [3]float64{0, 27, 55},
+	}
+	for i := range 12 {
+		f.alt[i] = float64(i) * 1000
+		f.temp[i] = -40 + float64(i)*10
+	}
+	for k := range 3 {
+		for i := range 12 {
+			for j := range 12 {
+				f.vals[k][i][j] = 25 + float64(k)*30 + float64(i)*0.3 + float64(j)*0.5 // as benchGatesTOML
+			}
+		}
+	}
+	return f
+}
+
+// floorSegment returns i with xs[i] ≤ x ≤ xs[i+1] by binary search; x is
+// within the axis.
+func floorSegment(xs []float64, x float64) int {
+	lo, hi := 0, len(xs)-2
+	for lo < hi {
+		mid := (lo + hi + 1) >> 1
+		if xs[mid] <= x {
+			lo = mid
+		} else {
+			hi = mid - 1
+		}
+	}
+	return lo
+}
+
+// lookup is gate k's table at c, clamped to its axes.
+func (f *benchFloor) lookup(k int, c *Conditions) float64 {
+	a := min(max(c.AltitudeFt, f.alt[0]), f.alt[11])
+	t := min(max(c.OATC, f.temp[0]), f.temp[11])
+	i, j := floorSegment(f.alt[:], a), floorSegment(f.temp[:], t)
+	fa := (a - f.alt[i]) / (f.alt[i+1] - f.alt[i])
+	ft := (t - f.temp[j]) / (f.temp[j+1] - f.temp[j])
+	v := &f.vals[k]
+	lo := v[i][j]*(1-ft) + v[i][j+1]*ft
+	hi := v[i+1][j]*(1-ft) + v[i+1][j+1]*ft
+	return lo*(1-fa) + hi*fa
+}
+
+// command is one sample's command value.
+func (f *benchFloor) command(raw float64, c *Conditions) float64 {
+	const capture = 1.5
+	if !f.holding || math.Abs(raw-f.held) > 1 { // deadband: 1 count
+		f.held, f.holding = raw, true
+	}
+	r := min(max(f.held, f.raw[0]), f.raw[4])
+	i := floorSegment(f.raw[:], r)
+	fr := (r - f.raw[i]) / (f.raw[i+1] - f.raw[i])
+	tla := f.tla[i]*(1-fr) + f.tla[i+1]*fr
+	tla = min(max(tla, 0), 55) // the end stops
+	g := floorSegment(f.gate[:], tla)
+	switch {
+	case math.Abs(tla-f.gate[g]) <= capture:
+		return f.lookup(g, c)
+	case math.Abs(tla-f.gate[g+1]) <= capture:
+		return f.lookup(g+1, c)
+	}
+	lo, hi := f.lookup(g, c), f.lookup(g+1, c)
+	loEdge, hiEdge := f.gate[g]+capture, f.gate[g+1]-capture
+	return lo + (hi-lo)*((tla-loEdge)/(hiEdge-loEdge))
 }
 
 // sink keeps benchmark results alive so the compiler cannot drop the work.

@@ -431,3 +431,37 @@ func cstr(p unsafe.Pointer) string {
 	}
 	return string(unsafe.Slice((*byte)(p), n))
 }
+
+// BenchmarkCoreCommandLevers is the batch call without the crossing from
+// C: four levers a frame, the conditions drifting every frame (the
+// crossing's own cost is in cmd/libthrustmap/bench).
+func BenchmarkCoreCommandLevers(b *testing.B) {
+	id := openHandle("demo", "demo")
+	if id == 0 {
+		b.Fatal(globalErrText())
+	}
+	defer closeHandle(id)
+	levers := []int32{1, 2, 1, 2}
+	var raws [4]int32
+	sum := 0.0
+	put := func(_ int, cmd thrustmap.LeverCommand) { sum += cmd.Value }
+	b.ReportAllocs()
+	for i := 0; b.Loop(); i++ {
+		f := i & 4095
+		alt := 30000 * float64(f) / 4096
+		in := conditions{AltFt: alt, OATC: 25 - 0.0019812*alt, Mach: 0.3 + 0.48*float64(f)/4096}
+		t := f & 2047
+		for k := range raws {
+			raws[k] = int32(1218 + (3880-1218)*min(t, 2048-t)/1024)
+			if k%2 == 1 {
+				raws[k] = int32(3021 - (3021-225)*min(t, 2048-t)/1024)
+			}
+		}
+		h := acquire(id)
+		if code := h.commandLevers(levers, raws[:], in, put); code != codeOK {
+			b.Fatal(h.errText())
+		}
+		h.release()
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/4, "ns/lever")
+}
