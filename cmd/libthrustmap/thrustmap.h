@@ -45,9 +45,10 @@
  * `thrustmap export c` writes a self-contained C99 source file of a profile and
  * calibration, with no runtime, to compile into the plugin instead.
  *
- * Cost. Each call from C into the library crosses into the Go runtime, which
- * costs about as much as one lever's command: command every lever of a frame
- * with one thrustmap_command_levers call. It allocates nothing.
+ * Cost. Each call from C into the library crosses into the Go runtime, a
+ * fixed cost on top of the work (cmd/libthrustmap/bench/run.sh measures it):
+ * command every lever of a frame with one thrustmap_command_levers call. The
+ * lever functions allocate nothing.
  *
  * Threads. Every function may be called from any thread. Calls for one lever
  * of one handle are serialised; calls for different levers run in parallel
