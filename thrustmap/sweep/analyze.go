@@ -115,6 +115,45 @@ func (a *Analyzer) Scan(lever int) (Scan, bool) {
 	return Scan{}, false
 }
 
+// Progress is what the analysis has seen of one lever so far, for a live
+// view while a sweep is being recorded. Taking it does not end the lever's
+// analysis: samples may go on being added.
+type Progress struct {
+	Lever      int
+	Samples    int64
+	Raw        float64 // the latest reading
+	RawMinSeen float64
+	RawMaxSeen float64
+	Resting    bool // the lever rests now
+	// Rests are the rest positions found so far, in raw order: the dwells
+	// (the one going on included, once it is long enough to count)
+	// clustered as Calibrate clusters them.
+	Rests []float64
+}
+
+// Progress returns lever's progress so far; ok is false for a lever never
+// seen. It allocates, so call it to redraw a view, not for every sample.
+func (a *Analyzer) Progress(lever int) (p Progress, ok bool) {
+	for _, l := range a.levers {
+		if l.id != lever {
+			continue
+		}
+		sc := l.scan()
+		if l.resting && !l.finished {
+			open := l.cur // a copy: finishing it leaves the dwell open
+			if d, ok := open.finish(&a.opts, l.sigma()); ok {
+				sc.Dwells = append(sc.Dwells, d)
+			}
+		}
+		p = Progress{Lever: l.id, Samples: l.n, Raw: l.prev[1], RawMinSeen: l.minSeen, RawMaxSeen: l.maxSeen, Resting: l.resting}
+		for _, c := range restClusters(sc) {
+			p.Rests = append(p.Rests, c.raw)
+		}
+		return p, true
+	}
+	return Progress{}, false
+}
+
 // leverScan is the streaming state of one lever.
 type leverScan struct {
 	id               int

@@ -89,8 +89,12 @@ func Calibrate(p *thrustmap.Profile, sc Scan, o CalOptions) (Result, error) {
 		return res, fmt.Errorf("lever %d: no rest found in %d samples: rest the lever at each end stop and in each notch for at least a quarter second", sc.Lever, sc.Samples)
 	}
 	sigma := sc.NoiseSigma
-	clusters := clusterDwells(sc.Dwells, math.Max(12*sigma, 30))
+	clusters := restClusters(sc)
 	want := p.NotchPositions()
+	if len(clusters) == 1 && len(want) > 1 {
+		return res, fmt.Errorf("%w: lever %d rested at one place only (raw %.0f) and travelled %g counts (raw %g to %g): move it from end stop to end stop, resting at each end and in each notch",
+			ErrNotchCount, sc.Lever, clusters[0].raw, sc.RawMaxSeen-sc.RawMinSeen, sc.RawMinSeen, sc.RawMaxSeen)
+	}
 	if len(clusters) != len(want) {
 		found := make([]string, len(clusters))
 		for i, c := range clusters {
@@ -160,6 +164,12 @@ func Calibrate(p *thrustmap.Profile, sc Scan, o CalOptions) (Result, error) {
 	}
 	res.Spec = spec
 	return res, nil
+}
+
+// restClusters groups a scan's dwells into rest positions: dwells within
+// 12 noise σ (at least 30 counts) of each other are one position.
+func restClusters(sc Scan) []cluster {
+	return clusterDwells(sc.Dwells, math.Max(12*sc.NoiseSigma, 30))
 }
 
 // clusterDwells groups dwells whose positions lie within gap of each other.

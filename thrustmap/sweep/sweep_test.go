@@ -3,6 +3,7 @@ package sweep
 import (
 	"errors"
 	"math"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -255,5 +256,65 @@ func BenchmarkAnalyze1M(b *testing.B) {
 		if _, ok := a.Scan(1); !ok {
 			b.Fatal("no lever")
 		}
+	}
+}
+
+// TestProgress: the live view of a sweep being recorded. Asking for
+// progress while samples arrive does not change the analysis (the scan at
+// the end equals that of an analyzer never asked), the rests found grow
+// notch by notch as the generator rests the lever in each, and at the end
+// they are the generator's notches (within 1 count, as TestNotchAccuracy).
+func TestProgress(t *testing.T) {
+	cfg := baseConfig(SynthLever{ID: 1, Notches: demoNotches, NoiseSigma: 3})
+	cfg.Passes = 1
+	samples := Synthesize(cfg)
+	watched, quiet := NewAnalyzer(Options{}), NewAnalyzer(Options{})
+	maxRests := 0
+	for i, s := range samples {
+		watched.Add(s)
+		quiet.Add(s)
+		if i%50 != 0 {
+			continue
+		}
+		p, ok := watched.Progress(1)
+		if !ok || p.Samples != int64(i+1) || p.Raw != s.Raw {
+			t.Fatalf("sample %d: progress %+v, ok %v", i, p, ok)
+		}
+		if len(p.Rests) < maxRests {
+			t.Fatalf("sample %d: rests fell from %d to %d", i, maxRests, len(p.Rests))
+		}
+		maxRests = len(p.Rests)
+	}
+	p, _ := watched.Progress(1)
+	if len(p.Rests) != len(demoNotches) {
+		t.Fatalf("rests %v, want the %d notches %v", p.Rests, len(demoNotches), demoNotches)
+	}
+	for i, r := range p.Rests {
+		if math.Abs(r-demoNotches[i]) > 1 {
+			t.Errorf("rest %d at %.2f, truth %.0f", i, r, demoNotches[i])
+		}
+	}
+	if !p.Resting || p.RawMinSeen > 250 || p.RawMaxSeen < 3875 {
+		t.Errorf("end: %+v", p)
+	}
+	a, _ := watched.Scan(1)
+	b, _ := quiet.Scan(1)
+	if !reflect.DeepEqual(a, b) {
+		t.Errorf("progress changed the analysis:\n%+v\n%+v", a, b)
+	}
+	if _, ok := watched.Progress(9); ok {
+		t.Error("progress of a lever never seen")
+	}
+}
+
+// TestNoTravel: a lever that only rested in one place gets a message that
+// says so, not a notch count.
+func TestNoTravel(t *testing.T) {
+	a := analyze(t, baseConfig(SynthLever{ID: 1, Notches: []float64{1218, 1218}, NoiseSigma: 3}))
+	sc, _ := a.Scan(1)
+	_, err := Calibrate(demoProfile(t), sc, CalOptions{})
+	if !errors.Is(err, ErrNotchCount) || !strings.Contains(err.Error(), "rested at one place only (raw 1218)") ||
+		!strings.Contains(err.Error(), "move it from end stop to end stop") {
+		t.Errorf("err = %v", err)
 	}
 }
