@@ -316,7 +316,7 @@ func TestWatchUsage(t *testing.T) {
 		{"no device", []string{"watch", "-p", "demo", "-c", "demo", "--alt", "0", "--oat", "15"}, "--device PATH is required"},
 		{"no calibration", []string{"watch", "-p", "demo", "--device", fifo}, "-p PROFILE and -c CAL are required"},
 		{"format not told by the path", append([]string{"watch", "--device", fifo}, demoArgs...), "cannot tell the input format"},
-		{"bad format", append([]string{"watch", "--device", fifo, "--format", "usb"}, demoArgs...), `--format "usb": want evdev, js or serial`},
+		{"bad format", append([]string{"watch", "--device", fifo, "--format", "usb"}, demoArgs...), `--format "usb": want evdev, js, serial, csv, joy`},
 		{"axis without =", append([]string{"watch", "--device", fifo, "--format", "evdev", "--axis", "ABS_X"}, demoArgs...), "want CODE=LEVER"},
 		{"unknown axis name", append([]string{"watch", "--device", fifo, "--format", "evdev", "--axis", "ABS_TILLER=1"}, demoArgs...), "want an ABS_ name"},
 		{"lever not calibrated", append([]string{"watch", "--device", fifo, "--format", "js", "--axis", "0=7"}, demoArgs...), "has no lever 7 (levers: 1, 2)"},
@@ -324,6 +324,9 @@ func TestWatchUsage(t *testing.T) {
 		{"axes for serial", append([]string{"watch", "--device", fifo, "--format", "serial", "--axis", "0=1"}, demoArgs...), "serial lines carry lever ids"},
 		{"missing device", append([]string{"watch", "--device", filepath.Join(t.TempDir(), "event9"), "--format", "evdev"}, demoArgs...), "no such file"},
 		{"no conditions", []string{"watch", "-p", "demo", "-c", "demo", "--device", fifo, "--format", "evdev"}, "--alt is required"},
+		{"a directory", append([]string{"watch", "--device", t.TempDir()}, demoArgs...), "is a directory: want a device"},
+		{"speed not positive", append([]string{"watch", "--device", fifo, "--format", "evdev", "--speed", "0"}, demoArgs...), "--speed=0: want a positive factor"},
+		{"axis of a game controller", append([]string{"watch", "--device", fifo, "--format", "evdev", "--axis", "R=1"}, demoArgs...), "want an ABS_ name"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -335,5 +338,98 @@ func TestWatchUsage(t *testing.T) {
 				t.Errorf("stderr %q, want one line containing %q", stderr.String(), tc.want)
 			}
 		})
+	}
+}
+
+// TestWatchReplay: a regular file is replayed once at its own timing (sped
+// up by --speed), then watch summarises it and exits 0, for each recording
+// format; --once ends it early.
+func TestWatchReplay(t *testing.T) {
+	dir := t.TempDir()
+	files := map[string][]byte{
+		"rec.csv": []byte("t_ms,lever,raw\n0,1,1218\n0,2,3021\n500,1,2588\n"),
+		"rec.evdev": encode(t, inputEvent{50, 0, evAbs, absX, 1218}, inputEvent{50, 0, evAbs, absY, 3021},
+			inputEvent{50, 0, evSyn, synReport, 0}, inputEvent{50, 500_000, evAbs, absX, 2588}, inputEvent{50, 500_000, evSyn, synReport, 0}),
+		"rec.js": encode(t, jsEvent{1000, 1218, jsInit | jsAxis, 0}, jsEvent{1000, 3021, jsInit | jsAxis, 1}, jsEvent{1500, 2588, jsAxis, 0}),
+	}
+	for name, data := range files {
+		path := filepath.Join(dir, name)
+		if err := os.WriteFile(path, data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		t.Run(name, func(t *testing.T) {
+			args := append([]string{"watch", "--device", path, "--speed", "1000"}, demoArgs...)
+			stdout, stderr, code := startWatch(args...)
+			if c := waitExit(t, code, stderr); c != 0 {
+				t.Fatalf("exit %d; stderr:\n%s", c, stderr.String())
+			}
+			checkRows(t, stdout.String(), demoRows)
+			for _, want := range []string{
+				"replaying once at speed 1000",
+				"replayed " + path + " once: 3 samples covering 0.5 s of recording",
+				"lever 1: raw 1218 to 2588; gates reached: idle, climb",
+				"lever 2: raw 3021 to 3021; gates reached: idle",
+			} {
+				if !strings.Contains(stderr.String(), want) {
+					t.Errorf("stderr does not say %q:\n%s", want, stderr.String())
+				}
+			}
+			if strings.Contains(stderr.String(), "gone") {
+				t.Errorf("a recording is not a device that went away:\n%s", stderr.String())
+			}
+		})
+	}
+	args := append([]string{"watch", "--device", filepath.Join(dir, "rec.csv"), "--speed", "1000", "--once", "2"}, demoArgs...)
+	stdout, stderr, code := startWatch(args...)
+	if c := waitExit(t, code, stderr); c != 0 {
+		t.Fatalf("exit %d; stderr:\n%s", c, stderr.String())
+	}
+	checkRows(t, stdout.String(), demoRows[:2])
+}
+
+// TestWatchSkippedLines: serial lines that cannot be read are counted; the
+// first five are shown with their line numbers and the accepted forms.
+func TestWatchSkippedLines(t *testing.T) {
+	path := mkfifo(t)
+	data := "1 1218\n" + // line 1
+		"hello\n1 2 3\n1:\n#note\nx y\n1 20.5\nboard v2\n\n" + // lines 2-9: 6 bad (#note and the blank line are ignored)
+		"2,3021\n1: 2588\n" // lines 10, 11: other accepted forms
+	go feed(path, []byte(data))
+	args := append([]string{"watch", "--device", path, "--format", "serial", "--once=3"}, demoArgs...)
+	stdout, stderr, code := startWatch(args...)
+	if c := waitExit(t, code, stderr); c != 0 {
+		t.Fatalf("exit %d; stderr:\n%s", c, stderr.String())
+	}
+	checkRows(t, stdout.String(), demoRows)
+	for _, want := range []string{
+		"lines that cannot be read are skipped; accepted: \"LEVER RAW\": two whole numbers",
+		`skipped line 2: want two whole numbers: LEVER RAW: "hello"`,
+		`skipped line 3: want two whole numbers: LEVER RAW: "1 2 3"`,
+		`skipped line 7: want two whole numbers: LEVER RAW: "1 20.5"`,
+		"only the first 5 skipped lines are shown",
+		"6 line(s) of " + path + " could not be read and were skipped",
+	} {
+		if !strings.Contains(stderr.String(), want) {
+			t.Errorf("stderr does not say %q:\n%s", want, stderr.String())
+		}
+	}
+	if strings.Contains(stderr.String(), "board v2") {
+		t.Errorf("a sixth skipped line is shown:\n%s", stderr.String())
+	}
+}
+
+// TestWatchCSVDevice: --format csv reads t_ms,lever,raw lines from a FIFO,
+// header or not, keeping their times.
+func TestWatchCSVDevice(t *testing.T) {
+	path := mkfifo(t)
+	go feed(path, []byte("0,1,1218\n0,2,3021\n500,1,2588\n"))
+	args := append([]string{"watch", "--device", path, "--format", "csv", "--once=3", "--json"}, demoArgs...)
+	stdout, stderr, code := startWatch(args...)
+	if c := waitExit(t, code, stderr); c != 0 {
+		t.Fatalf("exit %d; stderr:\n%s", c, stderr.String())
+	}
+	lines := strings.Split(strings.TrimSpace(stdout.String()), "\n")
+	if len(lines) != 3 || !strings.HasPrefix(lines[2], `{"t_ms":500,"lever":1,"raw":2588,"tla_deg":27,"gate":"climb"`) {
+		t.Errorf("JSON lines:\n%s", stdout.String())
 	}
 }

@@ -6,11 +6,10 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"io/fs"
+	"math"
 	"os"
 	"os/signal"
 	"slices"
-	"strconv"
 	"strings"
 	"syscall"
 	"time"
@@ -34,34 +33,48 @@ func newWatchCmd() *cobra.Command {
 	var w watchConfig
 	var asJSON bool
 	cmd := &cobra.Command{
-		Use:   "watch -p PROFILE -c CAL --device PATH [--format evdev|js|serial] [--axis CODE=LEVER]... [--baud N] --alt ALT --oat T [--mach M] [--bleed NAME]... [--assumed T] [--on-ground] [--once N]",
+		Use:   "watch -p PROFILE -c CAL --device PATH|joy:N|RECORDING [--format evdev|js|serial|csv] [--axis CODE=LEVER]... [--baud N] --alt ALT --oat T [--mach M] [--bleed NAME]... [--assumed T] [--on-ground] [--once N] [--speed F]",
 		Short: "Live view of the levers of a device: raw counts, TLA, gate and command",
 		Long: `watch reads a live lever device and shows, for each lever, the raw count, the
 thrust-lever angle, the detent gate and the engine command at the given
 conditions, updated as the levers move. On a terminal the table is redrawn in
 place; otherwise (or with --json) each update is printed as one line.
+thrustmap devices lists the devices there are, with their axes.
 
 Devices (--format, or told from the path):
   evdev   /dev/input/eventN: Linux input events; true device counts, with the
           axis range the device reports (EVIOCGABS). The usual choice.
   js      /dev/input/jsN: the older joystick interface. It rescales counts to
           −32767..32767 and may add a centre dead zone; a warning says so.
-  serial  /dev/ttyUSB0, /dev/ttyACM0, /dev/serial/...: a board printing one
-          "LEVER RAW" line per reading (two integers), 8N1 at --baud. A FIFO or
-          file given with --format serial is read as plain text.
+  serial  /dev/ttyUSB0, /dev/ttyACM0, /dev/serial/..., COM3: a board printing
+          one "LEVER RAW" line per reading (two integers; "1,2048" and
+          "1:2048" too), 8N1 at --baud. Lines that cannot be read are counted
+          and the first few shown with their line numbers.
+  csv     a board (or FIFO) printing t_ms,lever,raw lines, the recording
+          format; its times are kept.
+  joy     joy:N, a game controller on Windows (multimedia joystick
+          interface), axes X, Y, Z, R, U, V; counts 0..65535 as the driver
+          reports them, after any calibration set in Windows.
+A FIFO given with --format is read as a device of that format.
+
+A regular file (a CSV recording, an evdev .evdev or joystick .js capture) is
+replayed once at its own timing, --speed F times faster, then watch prints a
+summary of what it saw and exits 0.
 
 Axes: by default the calibration's levers, in file order, are read from
-ABS_X, ABS_Y, ABS_Z, ... (evdev) or axes 0, 1, 2, ... (js). --axis CODE=LEVER
-maps one axis instead (repeatable), as does an axis key on a lever of the
-calibration; CODE is an ABS_ name (ABS_THROTTLE,
-ABS_RZ, ...) or a number for evdev, an axis number for js. Serial lines carry
-lever ids themselves.
+ABS_X, ABS_Y, ABS_Z, ... (evdev), axes 0, 1, 2, ... (js) or X, Y, Z, ...
+(joy). --axis CODE=LEVER maps one axis instead (repeatable), as does an axis
+key on a lever of the calibration; CODE is an ABS_ name (ABS_THROTTLE,
+ABS_RZ, ...) or a number for evdev, an axis number for js, an axis letter for
+joy. Serial and CSV lines carry lever ids themselves. An axis the device does
+not have is refused, with the list of those it has.
 
 When the device goes away (unplugged, or the writer of a FIFO closes it),
 watch says so and tries to reopen it every 500 ms until it returns; a
 /dev/input/by-id/... path keeps its name when a USB device comes back under
 another number. Ctrl-C ends it (exit status 0). --once N ends it after N
-samples.
+samples. A device the user may not read gets the fix: the udev rule for its
+vendor and product, or the group to join.
 
 Each update line (and JSON object, with the lever command's keys) carries
 t_ms, the device's time since it was opened: it starts again when the device
@@ -74,10 +87,13 @@ returns.
 				return fmt.Errorf("-p PROFILE and -c CAL are required")
 			}
 			if w.device == "" {
-				return fmt.Errorf("--device PATH is required (/dev/input/eventN, /dev/input/jsN, a serial port or a FIFO)")
+				return fmt.Errorf("--device PATH is required (/dev/input/eventN, /dev/input/jsN, a serial port, joy:N, a FIFO or a recording; thrustmap devices lists them)")
 			}
 			if w.once < 0 {
 				return fmt.Errorf("--once=%d: want a number of samples ≥ 1", w.once)
+			}
+			if !(w.speed > 0) || math.IsInf(w.speed, 0) {
+				return fmt.Errorf("--speed=%g: want a positive factor (1 is the recording's own timing)", w.speed)
 			}
 			m, err := thrustmap.LoadModel(w.profile, w.cal)
 			if err != nil {
@@ -86,10 +102,8 @@ returns.
 			if w.cond, _, err = cf.conditions(m.Profile()); err != nil {
 				return err
 			}
-			if w.format == "" {
-				if w.format, err = input.DetectFormat(w.device); err != nil {
-					return fmt.Errorf("--device: %w (give --format)", err)
-				}
+			if _, w.format, err = sourceFormat(w.device, w.format); err != nil {
+				return err
 			}
 			if w.axes, w.levers, err = watchAxes(m.Calibration(), w.format, w.axisArgs); err != nil {
 				return err
@@ -102,11 +116,12 @@ returns.
 	f := cmd.Flags()
 	f.StringVarP(&w.profile, "profile", "p", "", "profile file or embedded profile name")
 	f.StringVarP(&w.cal, "cal", "c", "", "calibration file (or an embedded profile's name)")
-	f.StringVar(&w.device, "device", "", "the device: /dev/input/eventN, /dev/input/jsN, a serial port, or a FIFO")
-	f.StringVar(&w.format, "format", "", "evdev, js or serial (default: told from the device path)")
+	f.StringVar(&w.device, "device", "", "the device: /dev/input/eventN, /dev/input/jsN, a serial port, joy:N, a FIFO, or a recording to replay")
+	f.StringVar(&w.format, "format", "", "evdev, js, serial, csv or joy (default: told from the device path)")
 	f.StringArrayVar(&w.axisArgs, "axis", nil, "CODE=LEVER: read lever LEVER from axis CODE (repeatable)")
 	f.IntVar(&w.baud, "baud", 115200, "serial port speed")
-	f.IntVar(&w.once, "once", 0, "exit after N samples (0: run until interrupted)")
+	f.IntVar(&w.once, "once", 0, "exit after N samples (0: run until interrupted, or to the end of a recording)")
+	f.Float64Var(&w.speed, "speed", 1, "replay a recording F times faster than its own timing")
 	cf.register(f, true)
 	f.BoolVar(&asJSON, "json", false, "print one JSON object per update")
 	return cmd
@@ -117,6 +132,7 @@ type watchConfig struct {
 	profile, cal, device, format string
 	axisArgs                     []string
 	baud, once                   int
+	speed                        float64
 	cond                         thrustmap.Conditions
 	axes                         map[int]int // device axis → lever id; nil for serial
 	levers                       []int       // the levers shown, in order
@@ -124,81 +140,71 @@ type watchConfig struct {
 
 // watchAxes builds the axis map: --axis CODE=LEVER pairs; else the axis
 // each lever's calibration records (its axis key); else the calibration's
-// levers in order on ABS_X, ABS_Y, ... (evdev) or axes 0, 1, ... (js).
-// Serial lines name their levers: every calibrated lever is shown.
+// levers in order on ABS_X, ABS_Y, ... (evdev), axes 0, 1, ... (js) or X,
+// Y, ... (joy). Serial and CSV lines name their levers: every calibrated
+// lever is shown.
 func watchAxes(cal *thrustmap.Calibration, format string, args []string) (map[int]int, []int, error) {
-	var fromCal []string
 	var ids []int
 	for _, l := range cal.Levers() {
 		ids = append(ids, l.ID())
-		if a := l.Spec().Axis; a != "" {
-			fromCal = append(fromCal, fmt.Sprintf("%s=%d", a, l.ID()))
-		}
-	}
-	if len(args) == 0 && format != input.FormatSerial {
-		args = fromCal
 	}
 	switch format {
-	case input.FormatSerial:
+	case input.FormatSerial, input.FormatCSV:
 		if len(args) > 0 {
-			return nil, nil, fmt.Errorf("--axis: serial lines carry lever ids (\"LEVER RAW\"); there are no axes to map")
+			return nil, nil, fmt.Errorf("--axis: %s lines carry lever ids; there are no axes to map", format)
 		}
 		return nil, ids, nil
-	case input.FormatEvdev, input.FormatJoystick:
+	case input.FormatEvdev, input.FormatJoystick, input.FormatJoy:
 	default:
-		return nil, nil, fmt.Errorf("--format %q: want evdev, js or serial", format)
+		return nil, nil, fmt.Errorf("--format %q: want %s", format, strings.Join(sourceFormats, ", "))
 	}
 	axes := make(map[int]int)
 	var levers []int
-	if len(args) == 0 {
-		for i, id := range ids {
-			axes[i] = id
-		}
-		return axes, ids, nil
-	}
-	for _, a := range args {
-		codeText, leverText, ok := strings.Cut(a, "=")
-		if !ok {
-			return nil, nil, fmt.Errorf("--axis %q: want CODE=LEVER (ABS_THROTTLE=1, 0=1)", a)
-		}
-		var code int
-		if format == input.FormatEvdev {
-			c, err := input.ParseAbsCode(strings.TrimSpace(codeText))
-			if err != nil {
-				return nil, nil, fmt.Errorf("--axis %q: %w", a, err)
-			}
-			code = int(c)
-		} else {
-			n, err := strconv.Atoi(strings.TrimSpace(codeText))
-			if err != nil || n < 0 || n > 255 {
-				return nil, nil, fmt.Errorf("--axis %q: want a joystick axis number from 0 to 255 before the =", a)
-			}
-			code = n
-		}
-		id, err := strconv.Atoi(strings.TrimSpace(leverText))
-		if err != nil {
-			return nil, nil, fmt.Errorf("--axis %q: want a lever id after the =", a)
-		}
+	add := func(code, id int, what string) error {
 		if cal.Lever(id) == nil {
-			return nil, nil, fmt.Errorf("--axis %q: %s has no lever %d (levers: %s)", a, cal.Source(), id, leverIDs(cal))
+			return fmt.Errorf("%s: %s has no lever %d (levers: %s)", what, cal.Source(), id, leverIDs(cal))
 		}
 		if prev, dup := axes[code]; dup {
-			return nil, nil, fmt.Errorf("--axis %q: axis %s is already mapped to lever %d", a, codeText, prev)
+			return fmt.Errorf("%s: axis %s is already mapped to lever %d", what, input.AxisName(format, code), prev)
 		}
 		axes[code] = id
 		if !slices.Contains(levers, id) {
 			levers = append(levers, id)
 		}
+		return nil
 	}
-	return axes, levers, nil
-}
-
-// axisLabel names a device axis for messages.
-func axisLabel(format string, code int) string {
-	if format == input.FormatEvdev {
-		return input.AbsName(uint16(code))
+	if len(args) > 0 {
+		for _, a := range args {
+			code, id, err := parseAxisArg(format, a)
+			if err != nil {
+				return nil, nil, err
+			}
+			if err := add(code, id, fmt.Sprintf("--axis %q", a)); err != nil {
+				return nil, nil, err
+			}
+		}
+		return axes, levers, nil
 	}
-	return "axis " + strconv.Itoa(code)
+	for _, l := range cal.Levers() {
+		a := l.Spec().Axis
+		if a == "" {
+			continue
+		}
+		code, err := input.ParseAxis(format, a)
+		if err != nil {
+			return nil, nil, fmt.Errorf("%s: lever %d: axis %q is not an axis of a %s source (%v): give --axis", cal.Source(), l.ID(), a, format, err)
+		}
+		if err := add(code, l.ID(), fmt.Sprintf("%s: lever %d: axis %q", cal.Source(), l.ID(), a)); err != nil {
+			return nil, nil, err
+		}
+	}
+	if len(axes) > 0 {
+		return axes, levers, nil
+	}
+	for i, id := range ids {
+		axes[i] = id
+	}
+	return axes, ids, nil
 }
 
 // watchEvent is what the reading goroutine hands over: a sample or the error
@@ -210,21 +216,21 @@ type watchEvent struct {
 
 // run opens the device, shows its samples and reopens it when it goes away,
 // until ctx ends or --once is reached. Only the first open's failure is an
-// error; later failures mean the device is still away.
+// error; later failures mean the device is still away. A regular file is
+// replayed once at its own timing (sped up by --speed), then summarised.
 func (w *watchConfig) run(ctx context.Context, m *thrustmap.Model, v *watchView) error {
 	states := make(map[int]*thrustmap.LeverState)
 	unknown := make(map[int]bool)
+	stats := newReplayStats()
+	skips := &skipReporter{emit: v.message, max: 5}
 	count := 0
 	for attempt := 0; ; attempt++ {
-		src, closer, warning, err := w.open(ctx)
+		dev, err := w.open(ctx)
 		if ctx.Err() != nil {
 			return nil
 		}
 		if err != nil {
 			if attempt == 0 {
-				if errors.Is(err, fs.ErrPermission) {
-					return fmt.Errorf("--device: %w (input devices and serial ports usually belong to a group such as input or dialout: is your user in it?)", err)
-				}
 				return fmt.Errorf("--device: %w", err)
 			}
 			if !sleepCtx(ctx, watchRetry) {
@@ -233,10 +239,19 @@ func (w *watchConfig) run(ctx context.Context, m *thrustmap.Model, v *watchView)
 			continue
 		}
 		if attempt == 0 {
-			w.describe(v, src, warning, m.Calibration())
+			w.describe(v, dev, m.Calibration())
 			v.draw(true)
 		} else {
 			v.message(fmt.Sprintf("device %s is back", w.device))
+		}
+		var src input.Reader = dev
+		var paced *input.Paced
+		if dev.Kind == input.KindFile {
+			if paced, err = input.NewPaced(dev, w.speed); err != nil {
+				dev.Close()
+				return err
+			}
+			src = paced
 		}
 
 		events := make(chan watchEvent)
@@ -254,6 +269,13 @@ func (w *watchConfig) run(ctx context.Context, m *thrustmap.Model, v *watchView)
 				}
 			}
 		}()
+		stop := func() {
+			close(quit)
+			if paced != nil {
+				paced.Close()
+			}
+			dev.Close()
+		}
 		tick := time.NewTicker(watchRedraw)
 		var gone error
 	read:
@@ -264,6 +286,7 @@ func (w *watchConfig) run(ctx context.Context, m *thrustmap.Model, v *watchView)
 			case <-tick.C:
 				v.draw(false)
 			case e := <-events:
+				skips.report(dev)
 				if e.err != nil {
 					gone = e.err
 					break read
@@ -284,11 +307,11 @@ func (w *watchConfig) run(ctx context.Context, m *thrustmap.Model, v *watchView)
 				res, err := m.Command(st, e.s.Lever, e.s.Raw, w.cond)
 				if err != nil {
 					tick.Stop()
-					close(quit)
-					closer.Close()
+					stop()
 					return err
 				}
 				v.update(e.s.TMs, res)
+				stats.add(e.s, m.GateName(res.Gate))
 				count++
 				if w.once > 0 && count >= w.once {
 					break read
@@ -296,10 +319,21 @@ func (w *watchConfig) run(ctx context.Context, m *thrustmap.Model, v *watchView)
 			}
 		}
 		tick.Stop()
-		close(quit)
-		closer.Close()
+		stop()
 		v.draw(true)
+		if dev.Kind == input.KindFile {
+			for _, line := range stats.summary(dev, w.speed, skips.summary(dev)) {
+				v.message(line)
+			}
+			if gone != nil && !errors.Is(gone, io.EOF) {
+				return gone
+			}
+			return nil
+		}
 		if gone == nil { // ctrl-C or --once
+			if msg := skips.summary(dev); msg != "" {
+				v.message(msg)
+			}
 			return nil
 		}
 		msg := fmt.Sprintf("device %s gone; waiting for it to return", w.device)
@@ -313,66 +347,79 @@ func (w *watchConfig) run(ctx context.Context, m *thrustmap.Model, v *watchView)
 	}
 }
 
-// open opens the device, giving up when ctx ends. Opening a FIFO waits for
-// a writer and cannot be interrupted: the goroutine then closes what it
-// opened once a writer comes, or stays blocked until the process exits.
-func (w *watchConfig) open(ctx context.Context) (input.Reader, io.Closer, string, error) {
-	type opened struct {
-		r       input.Reader
-		c       io.Closer
-		warning string
-		err     error
+// replayStats gathers what a replay showed, for its summary.
+type replayStats struct {
+	start       time.Time
+	n           int
+	first, last int64
+	levers      []int
+	min, max    map[int]float64
+	gates       map[int][]string
+}
+
+func newReplayStats() *replayStats {
+	return &replayStats{start: time.Now(), min: map[int]float64{}, max: map[int]float64{}, gates: map[int][]string{}}
+}
+
+func (r *replayStats) add(s input.Sample, gate string) {
+	if r.n == 0 {
+		r.first = s.TMs
 	}
-	ch := make(chan opened, 1)
-	go func() {
-		r, c, warning, err := input.OpenDevice(w.device, w.format, w.axes, w.baud)
-		select {
-		case ch <- opened{r, c, warning, err}:
-		case <-ctx.Done():
-			if c != nil {
-				c.Close()
-			}
-		}
-	}()
-	select {
-	case o := <-ch:
-		return o.r, o.c, o.warning, o.err
-	case <-ctx.Done():
-		return nil, nil, "", ctx.Err()
+	r.n++
+	r.first, r.last = min(r.first, s.TMs), max(r.last, s.TMs)
+	if !slices.Contains(r.levers, s.Lever) {
+		r.levers = append(r.levers, s.Lever)
+		r.min[s.Lever], r.max[s.Lever] = s.Raw, s.Raw
+	}
+	r.min[s.Lever], r.max[s.Lever] = min(r.min[s.Lever], s.Raw), max(r.max[s.Lever], s.Raw)
+	if g := r.gates[s.Lever]; gate != "" && (len(g) == 0 || g[len(g)-1] != gate) && !slices.Contains(g, gate) {
+		r.gates[s.Lever] = append(g, gate)
 	}
 }
 
+// summary describes the replay: how much of the recording it showed, how
+// fast, and each lever's range and the gates it reached.
+func (r *replayStats) summary(d *input.Device, speed float64, skipped string) []string {
+	out := []string{fmt.Sprintf("replayed %s once: %d samples covering %.1f s of recording in %.1f s (speed %g)",
+		d.Path, r.n, float64(r.last-r.first)/1000, time.Since(r.start).Seconds(), speed)}
+	for _, id := range r.levers {
+		gates := "none"
+		if g := r.gates[id]; len(g) > 0 {
+			gates = strings.Join(g, ", ")
+		}
+		out = append(out, fmt.Sprintf("  lever %d: raw %g to %g; gates reached: %s", id, r.min[id], r.max[id], gates))
+	}
+	if skipped != "" {
+		out = append(out, skipped)
+	}
+	return out
+}
+
+// open opens the device, giving up when ctx ends.
+func (w *watchConfig) open(ctx context.Context) (*input.Device, error) {
+	return openCtx(ctx, w.device, input.OpenOptions{Format: w.format, Axes: w.axes, Baud: w.baud})
+}
+
 // describe says what is read from where, passes on the source's warning,
-// and compares an evdev device's reported ranges with the calibration's.
-func (w *watchConfig) describe(v *watchView, src input.Reader, warning string, cal *thrustmap.Calibration) {
-	var maps []string
-	codes := make([]int, 0, len(w.axes))
-	for code := range w.axes {
-		codes = append(codes, code)
+// and compares the ranges the device reports with the calibration's.
+func (w *watchConfig) describe(v *watchView, d *input.Device, cal *thrustmap.Calibration) {
+	how := "ctrl-C to stop"
+	if d.Kind == input.KindFile {
+		how = fmt.Sprintf("replaying once at speed %g", w.speed)
 	}
-	slices.Sort(codes)
-	for _, code := range codes {
-		maps = append(maps, fmt.Sprintf("lever %d ← %s", w.axes[code], axisLabel(w.format, code)))
+	v.message(fmt.Sprintf("watching %s; %s", describeSource(d), how))
+	if d.Warning != "" {
+		v.message("warning: " + d.Warning)
 	}
-	if w.format == input.FormatSerial {
-		maps = append(maps, "lever ids from the lines")
-	}
-	v.message(fmt.Sprintf("watching %s (%s): %s; ctrl-C to stop", w.device, w.format, strings.Join(maps, ", ")))
-	if warning != "" {
-		v.message("warning: " + warning)
-	}
-	if ev, ok := src.(*input.EvdevReader); ok {
-		ranges := ev.Ranges()
-		for _, id := range w.levers {
-			r, ok := ranges[id]
-			if !ok {
-				continue
-			}
-			spec := cal.Lever(id).Spec()
-			if float64(r[0]) != spec.RawMin || float64(r[1]) != spec.RawMax {
-				v.message(fmt.Sprintf("warning: lever %d: the device reports counts %d to %d, the calibration's device range is %g to %g",
-					id, r[0], r[1], spec.RawMin, spec.RawMax))
-			}
+	for _, a := range d.Axes {
+		l := cal.Lever(a.Lever)
+		if !a.HasRange || l == nil {
+			continue
+		}
+		spec := l.Spec()
+		if a.Min != spec.RawMin || a.Max != spec.RawMax {
+			v.message(fmt.Sprintf("warning: lever %d: the device reports counts %g to %g, the calibration's device range is %g to %g",
+				a.Lever, a.Min, a.Max, spec.RawMin, spec.RawMax))
 		}
 	}
 }

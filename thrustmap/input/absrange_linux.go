@@ -6,8 +6,6 @@ import (
 	"fmt"
 	"os"
 	"unsafe"
-
-	"golang.org/x/sys/unix"
 )
 
 // absinfo is struct input_absinfo (include/uapi/linux/input.h): value,
@@ -17,12 +15,9 @@ type absinfo struct {
 }
 
 // eviocgabs is EVIOCGABS(code) = _IOR('E', 0x40 + code, struct
-// input_absinfo), encoded as _IOC in include/uapi/asm-generic/ioctl.h:
-// direction above size above type above number.
+// input_absinfo).
 func eviocgabs(code uint16) uintptr {
-	const nrBits, typeBits = 8, 8
-	size := uintptr(unsafe.Sizeof(absinfo{}))
-	return iocRead<<(nrBits+typeBits+iocSizeBits) | size<<(nrBits+typeBits) | uintptr('E')<<nrBits | uintptr(0x40+code)
+	return ioc(iocRead, 'E', uintptr(0x40+code), unsafe.Sizeof(absinfo{}))
 }
 
 // AbsRange returns the range (minimum, maximum) of absolute axis code of the
@@ -33,20 +28,9 @@ func AbsRange(f *os.File, code uint16) (min, max int32, err error) {
 	if code > ABS_MAX {
 		return 0, 0, fmt.Errorf("%s: axis code %#x is above ABS_MAX (%#x)", f.Name(), code, ABS_MAX)
 	}
-	rc, err := f.SyscallConn()
-	if err != nil {
-		return 0, 0, fmt.Errorf("%s: %w", f.Name(), err)
-	}
 	var info absinfo
-	var errno unix.Errno
-	err = rc.Control(func(fd uintptr) {
-		_, _, errno = unix.Syscall(unix.SYS_IOCTL, fd, eviocgabs(code), uintptr(unsafe.Pointer(&info)))
-	})
-	if err != nil {
-		return 0, 0, fmt.Errorf("%s: %w", f.Name(), err)
-	}
-	if errno != 0 {
-		return 0, 0, fmt.Errorf("%s: EVIOCGABS(%#x): %w (is it an evdev device?)", f.Name(), code, errno)
+	if err := ioctl(f, eviocgabs(code), unsafe.Pointer(&info)); err != nil {
+		return 0, 0, fmt.Errorf("%s: EVIOCGABS(%#x): %w (is it an evdev device?)", f.Name(), code, err)
 	}
 	return info.Minimum, info.Maximum, nil
 }

@@ -30,7 +30,18 @@ type CSVReader struct {
 	need    int           // fields a line needs: the largest index + 1
 	last    map[int]int64 // the last time of each lever
 	skips   skipLog
+	// optional: a first line of data, not a header, is taken as
+	// t_ms,lever,raw in that order (HeaderOptional); pending holds it.
+	optional bool
+	pending  []string
 }
+
+// HeaderOptional lets the source start without a header: when its first
+// line is three numbers and names no column, the columns are taken to be
+// t_ms, lever and raw in that order, and the line is read as data. It is
+// for live sources (a board printing lines on a serial port), whose header
+// may have gone by before anyone listened.
+func (r *CSVReader) HeaderOptional() { r.optional = true }
 
 // NewCSVReader returns a reader of the CSV recording r; name (the file's
 // path) is used in errors. Nothing is read until the first Next.
@@ -54,6 +65,13 @@ func (r *CSVReader) Next() (Sample, error) {
 		if err := r.header(); err != nil {
 			r.err = err
 			return Sample{}, err
+		}
+	}
+	if r.pending != nil {
+		rec := r.pending
+		r.pending = nil
+		if s, ok := r.sample(rec); ok {
+			return s, nil
 		}
 	}
 	for {
@@ -114,22 +132,46 @@ func (r *CSVReader) skip(line int, rec []string, reason string) {
 	r.skips.add(line, strings.Join(rec, ","), reason)
 }
 
-// header reads the first record and finds the columns by name.
+// header reads the first record and finds the columns by name. With
+// HeaderOptional, a first line of data stands for the header t_ms,lever,raw,
+// and lines that are neither are skipped until one is.
 func (r *CSVReader) header() error {
 	want := "want a first line naming the columns t_ms, lever and raw"
-	rec, err := r.cr.Read()
-	for err != nil {
-		var pe *csv.ParseError
-		switch {
-		case err == io.EOF:
-			return &thrustmap.FileError{File: r.name, Err: fmt.Errorf("no header: %s", want)}
-		case errors.As(err, &pe):
-			return &thrustmap.FileError{File: r.name, Line: pe.StartLine, Err: fmt.Errorf("header is not CSV (%v): %s", pe.Err, want)}
-		default:
-			return fmt.Errorf("%s: %w", r.name, err)
+	for {
+		rec, err := r.cr.Read()
+		if err != nil {
+			var pe *csv.ParseError
+			switch {
+			case err == io.EOF && r.optional:
+				return io.EOF
+			case err == io.EOF:
+				return &thrustmap.FileError{File: r.name, Err: fmt.Errorf("no header: %s", want)}
+			case errors.As(err, &pe) && r.optional:
+				r.skips.add(pe.StartLine, "", "not CSV: "+pe.Err.Error())
+				continue
+			case errors.As(err, &pe):
+				return &thrustmap.FileError{File: r.name, Line: pe.StartLine, Err: fmt.Errorf("header is not CSV (%v): %s", pe.Err, want)}
+			default:
+				return fmt.Errorf("%s: %w", r.name, err)
+			}
 		}
+		line, _ := r.cr.FieldPos(0)
+		if r.optional && looksLikeData(rec) {
+			r.col, r.need = [3]int{0, 1, 2}, 3
+			r.pending = append([]string(nil), rec...)
+			return nil
+		}
+		err = r.columns(rec, line, want)
+		if err != nil && r.optional {
+			r.skip(line, rec, "neither a header naming t_ms, lever and raw nor a line t_ms,lever,raw")
+			continue
+		}
+		return err
 	}
-	line, _ := r.cr.FieldPos(0)
+}
+
+// columns finds the columns t_ms, lever and raw in a header.
+func (r *CSVReader) columns(rec []string, line int, want string) error {
 	r.col = [3]int{-1, -1, -1}
 	names := [3]string{ColTime, ColLever, ColRaw}
 	for i, f := range rec {
@@ -161,3 +203,17 @@ func (r *CSVReader) SkippedCount() int { return r.skips.count }
 
 // Name returns the name given to NewCSVReader.
 func (r *CSVReader) Name() string { return r.name }
+
+// looksLikeData reports whether a first line is three or more fields that
+// start with whole numbers, rather than a header.
+func looksLikeData(rec []string) bool {
+	if len(rec) < 3 {
+		return false
+	}
+	for _, f := range rec[:2] {
+		if _, ok := parseWhole(strings.TrimSpace(f)); !ok {
+			return false
+		}
+	}
+	return true
+}

@@ -268,3 +268,31 @@ func BenchmarkCSVReader(b *testing.B) {
 	}
 	b.ReportMetric(float64(lines)*float64(b.N)/b.Elapsed().Seconds(), "lines/s")
 }
+
+// TestCSVHeaderOptional: a live source may start without its header, or
+// with a line cut short before it.
+func TestCSVHeaderOptional(t *testing.T) {
+	tests := []struct {
+		name, in string
+		want     []Sample
+		skipped  int
+	}{
+		{"no header", "0,1,1218\n5,1,1219\n5,2,3021\n", []Sample{{0, 1, 1218}, {5, 1, 1219}, {5, 2, 3021}}, 0},
+		{"a header", "t_ms,lever,raw\n0,1,1218\n", []Sample{{0, 1, 1218}}, 0},
+		{"a cut line, then the header", "18\nt_ms,lever,raw\n0,1,5\n", []Sample{{0, 1, 5}}, 1},
+		{"a cut line, then data", "218\n0,1,5\n", []Sample{{0, 1, 5}}, 1},
+		{"nothing", "", nil, 0},
+	}
+	for _, tc := range tests {
+		r := NewCSVReader(strings.NewReader(tc.in), "board")
+		r.HeaderOptional()
+		got, err := readAll(r)
+		if err != nil || !slices.Equal(got, tc.want) || r.SkippedCount() != tc.skipped {
+			t.Errorf("%s: %v, %v, skipped %v", tc.name, got, err, r.Skipped())
+		}
+	}
+	// Without it, a file must start with its header.
+	if _, err := readAll(NewCSVReader(strings.NewReader("0,1,1218\n"), "rec.csv")); err == nil || !strings.Contains(err.Error(), "has no t_ms column") {
+		t.Errorf("headerless file: %v", err)
+	}
+}

@@ -37,11 +37,17 @@ const (
 	ABS_MAX      = 0x3f // the largest axis code
 )
 
-// absNames are the axis names ParseAbsCode accepts.
+// absNames are the axis names ParseAbsCode accepts and AbsName gives, from
+// include/uapi/linux/input-event-codes.h (the multi-touch codes from 0x2f
+// up are left out: no lever reports them).
 var absNames = map[string]uint16{
 	"ABS_X": ABS_X, "ABS_Y": ABS_Y, "ABS_Z": ABS_Z, "ABS_RX": ABS_RX, "ABS_RY": ABS_RY,
 	"ABS_RZ": ABS_RZ, "ABS_THROTTLE": ABS_THROTTLE, "ABS_RUDDER": ABS_RUDDER,
-	"ABS_WHEEL": ABS_WHEEL, "ABS_GAS": ABS_GAS, "ABS_BRAKE": ABS_BRAKE, "ABS_MISC": ABS_MISC,
+	"ABS_WHEEL": ABS_WHEEL, "ABS_GAS": ABS_GAS, "ABS_BRAKE": ABS_BRAKE,
+	"ABS_HAT0X": 0x10, "ABS_HAT0Y": 0x11, "ABS_HAT1X": 0x12, "ABS_HAT1Y": 0x13,
+	"ABS_HAT2X": 0x14, "ABS_HAT2Y": 0x15, "ABS_HAT3X": 0x16, "ABS_HAT3Y": 0x17,
+	"ABS_PRESSURE": 0x18, "ABS_DISTANCE": 0x19, "ABS_TILT_X": 0x1a, "ABS_TILT_Y": 0x1b,
+	"ABS_TOOL_WIDTH": 0x1c, "ABS_VOLUME": 0x20, "ABS_PROFILE": 0x21, "ABS_MISC": ABS_MISC,
 }
 
 // EvdevRecordSize is the size of one struct input_event on 64-bit Linux:

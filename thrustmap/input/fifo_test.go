@@ -66,11 +66,12 @@ func TestOpenDeviceFIFO(t *testing.T) {
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			path, done := fifo(t, tc.data)
-			r, c, warning, err := OpenDevice(path, tc.format, tc.axes, 0)
+			d, err := OpenDevice(path, OpenOptions{Format: tc.format, Axes: tc.axes})
 			if err != nil {
 				t.Fatal(err)
 			}
-			defer c.Close()
+			defer d.Close()
+			r, warning := d.Reader, d.Warning
 			got, err := readAll(r)
 			if err != nil {
 				t.Fatal(err)
@@ -93,11 +94,12 @@ func TestOpenDeviceFIFO(t *testing.T) {
 	// Serial lines: the lever ids and counts are the lines'; times come from
 	// the clock, so only their order is checked.
 	path, done := fifo(t, []byte("1 1218\n2 3021\nhello\n1 2588\n"))
-	r, c, _, err := OpenDevice(path, FormatSerial, nil, 115200)
+	d, err := OpenDevice(path, OpenOptions{Format: FormatSerial, Baud: 115200})
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer c.Close()
+	defer d.Close()
+	r := d.Reader
 	got, err := readAll(r)
 	if err != nil || <-done != nil {
 		t.Fatal(err)

@@ -7,6 +7,7 @@ import (
 	"math"
 	"testing"
 	"time"
+	"unicode/utf8"
 )
 
 // checkRecords drains a reader of binary records and fails on a
@@ -35,7 +36,17 @@ func checkRecords(t *testing.T, r Reader, records int) {
 func FuzzCSVReader(f *testing.F) {
 	f.Add([]byte("t_ms,lever,raw\n0,1,1218\n10,1,2588\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
-		r := NewCSVReader(bytes.NewReader(data), "fuzz.csv")
+		checkCSV(t, NewCSVReader(bytes.NewReader(data), "fuzz.csv"))
+		live := NewCSVReader(bytes.NewReader(data), "fuzz.csv")
+		live.HeaderOptional()
+		checkCSV(t, live)
+	})
+}
+
+// checkCSV drains a CSV reader: finite samples, each lever in time order,
+// at most MaxSkipped skips kept.
+func checkCSV(t *testing.T, r *CSVReader) {
+	{
 		last := map[int]int64{}
 		for {
 			s, err := r.Next()
@@ -53,7 +64,7 @@ func FuzzCSVReader(f *testing.F) {
 		if len(r.Skipped()) > MaxSkipped || r.SkippedCount() < len(r.Skipped()) {
 			t.Fatalf("kept %d skips, counted %d", len(r.Skipped()), r.SkippedCount())
 		}
-	})
+	}
 }
 
 // FuzzEvdevReader: any byte stream reads without panicking and yields only
@@ -95,6 +106,75 @@ func FuzzLineReader(f *testing.F) {
 		}
 		if len(r.Skipped()) > MaxSkipped {
 			t.Fatalf("kept %d skips", len(r.Skipped()))
+		}
+	})
+}
+
+// FuzzParseAxis: any text parses or is refused without panicking, for
+// every format; what parses reads back through AxisName.
+func FuzzParseAxis(f *testing.F) {
+	f.Add(uint8(0), "ABS_THROTTLE")
+	f.Add(uint8(2), "z")
+	f.Fuzz(func(t *testing.T, which uint8, s string) {
+		formats := []string{FormatEvdev, FormatJoystick, FormatJoy, FormatSerial, FormatCSV, "usb"}
+		format := formats[int(which)%len(formats)]
+		code, err := ParseAxis(format, s)
+		if err != nil {
+			return
+		}
+		if again, err := ParseAxis(format, AxisName(format, code)); err != nil || again != code {
+			t.Fatalf("%s %q: code %d, read back as %d, %v", format, s, code, again, err)
+		}
+	})
+}
+
+// FuzzParseJoyID: joy:N names parse to 0..15 or are refused.
+func FuzzParseJoyID(f *testing.F) {
+	f.Add("joy:0")
+	f.Fuzz(func(t *testing.T, s string) {
+		id, ok, err := ParseJoyID(s)
+		if err == nil && ok && (id < 0 || id >= MaxControllers) {
+			t.Fatalf("%q: id %d", s, id)
+		}
+		if !ok && err != nil {
+			t.Fatalf("%q: not a joy: name, yet an error %v", s, err)
+		}
+	})
+}
+
+// FuzzParseAbsCapabilities: any text gives axis codes in order, each at
+// most ABS_MAX and once, or an error.
+func FuzzParseAbsCapabilities(f *testing.F) {
+	f.Add("30063")
+	f.Fuzz(func(t *testing.T, s string) {
+		codes, err := ParseAbsCapabilities(s)
+		if err != nil {
+			return
+		}
+		for i, c := range codes {
+			if c > ABS_MAX || (i > 0 && c <= codes[i-1]) {
+				t.Fatalf("%q: codes %v", s, codes)
+			}
+		}
+	})
+}
+
+// FuzzDecodeJoyCaps: any 728 bytes decode to a controller with X and Y and
+// at most six axes, each named.
+func FuzzDecodeJoyCaps(f *testing.F) {
+	f.Add(make([]byte, joyCapsSize))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		b := make([]byte, joyCapsSize)
+		copy(b, data)
+		c, err := decodeJoyCaps(b)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(c.Axes) < 2 || len(c.Axes) > JoyAxes || c.Axes[0].Name() != "X" || c.Axes[1].Name() != "Y" {
+			t.Fatalf("axes %+v", c.Axes)
+		}
+		if !utf8.ValidString(c.Name) {
+			t.Fatalf("name %q", c.Name)
 		}
 	})
 }

@@ -1,7 +1,10 @@
 // Package input reads raw lever readings from recordings and live devices:
 // CSV recordings (t_ms,lever,raw), Linux evdev event streams (struct
-// input_event), the older Linux joystick interface (struct js_event) and
-// line-oriented serial boards printing "LEVER RAW".
+// input_event), the older Linux joystick interface (struct js_event),
+// line-oriented serial boards printing "LEVER RAW", and game controllers
+// through the Windows multimedia joystick interface. A System finds the
+// devices there are (Scan) and opens them (Open), saying how to get access
+// when the user may not read one (PermissionError).
 //
 // Every source is a Reader of Samples in order. Readers of text skip lines
 // they cannot use and remember where (Skipped); readers of binary records

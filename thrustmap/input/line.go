@@ -12,9 +12,10 @@ import (
 // maxLine is the longest line a LineReader takes; longer lines are skipped.
 const maxLine = 256
 
-// LineReader reads text lines "LEVER RAW" (two whitespace-separated
-// integers, as a microcontroller board on a serial port might print
-// "1 2048") and stamps each sample with the time it was read. Lines it
+// LineReader reads text lines "LEVER RAW" (two integers separated by
+// spaces, as a microcontroller board on a serial port might print "1 2048";
+// or by a comma, colon, semicolon or "=", see LineForms) and stamps each
+// sample with the time it was read. Lines it
 // cannot use are skipped and remembered; blank lines and lines starting with
 // '#' are ignored.
 type LineReader struct {
@@ -77,33 +78,47 @@ func (r *LineReader) fail(err error) {
 	}
 }
 
+// LineForms describes the lines a LineReader accepts, for messages.
+const LineForms = `"LEVER RAW": two whole numbers, the lever id and the raw count, separated by spaces, a comma, a colon, a semicolon or "=" ("1 2048", "1,2048", "1: 2048"); blank lines and lines starting with # are ignored`
+
+// lineSeps are the separators of LEVER and RAW other than spaces.
+const lineSeps = ",:;="
+
 // parse reads one line, or skips it with the reason.
 func (r *LineReader) parse(b []byte) (Sample, bool) {
 	b = bytes.TrimSpace(b)
 	if len(b) == 0 || b[0] == '#' {
 		return Sample{}, false
 	}
-	var f [3][]byte
-	n := 0
-	for rest := b; len(rest) > 0 && n < len(f); n++ {
-		i := bytes.IndexAny(rest, " \t")
-		if i < 0 {
-			f[n], rest = rest, nil
-		} else {
-			f[n], rest = rest[:i], bytes.TrimLeft(rest[i:], " \t")
-		}
-	}
-	if n != 2 {
-		r.skips.add(r.line, string(b), "want two integers: LEVER RAW")
+	first, second, ok := splitLine(b)
+	if !ok {
+		r.skips.add(r.line, string(b), "want two whole numbers: LEVER RAW")
 		return Sample{}, false
 	}
-	lever, ok1 := parseInt(f[0])
-	raw, ok2 := parseInt(f[1])
+	lever, ok1 := parseInt(first)
+	raw, ok2 := parseInt(second)
 	if !ok1 || !ok2 || lever != int64(int(lever)) {
-		r.skips.add(r.line, string(b), "want two integers: LEVER RAW")
+		r.skips.add(r.line, string(b), "want two whole numbers: LEVER RAW")
 		return Sample{}, false
 	}
 	return Sample{TMs: r.now().Sub(r.start).Milliseconds(), Lever: int(lever), Raw: float64(raw)}, true
+}
+
+// splitLine cuts a trimmed line into two fields separated by spaces or
+// tabs, or by one of lineSeps with optional spaces around it.
+func splitLine(b []byte) (first, second []byte, ok bool) {
+	i := bytes.IndexAny(b, " \t"+lineSeps)
+	if i <= 0 {
+		return nil, nil, false
+	}
+	first, rest := b[:i], bytes.TrimLeft(b[i:], " \t")
+	if len(rest) > 0 && bytes.IndexByte([]byte(lineSeps), rest[0]) >= 0 {
+		rest = bytes.TrimLeft(rest[1:], " \t")
+	}
+	if len(rest) == 0 || bytes.ContainsAny(rest, " \t"+lineSeps) {
+		return nil, nil, false
+	}
+	return first, rest, true
 }
 
 // Skipped returns the first MaxSkipped lines that were skipped, in order.

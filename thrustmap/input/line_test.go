@@ -64,3 +64,23 @@ func TestLineReaderError(t *testing.T) {
 		t.Errorf("empty input: %v, want io.EOF", err)
 	}
 }
+
+// TestLineForms: the separators LineForms lists; anything else is skipped.
+func TestLineForms(t *testing.T) {
+	start := time.Unix(0, 0)
+	good := []string{"1 2048", "1\t2048", "1,2048", "1, 2048", "1:2048", "1: 2048", "1 = 2048", "1;2048", "  1   2048  "}
+	bad := []string{"1,,2048", "1, 2048, 3", ",2048", "1 2048 3", "1:", "1 : : 2048", "a,b", "1/2048"}
+	for _, line := range good {
+		r := NewLineReader(strings.NewReader(line+"\n"), "board", start, fakeClock(start))
+		got, err := readAll(r)
+		if err != nil || len(got) != 1 || got[0].Lever != 1 || got[0].Raw != 2048 {
+			t.Errorf("%q: %v, %v", line, got, err)
+		}
+	}
+	for _, line := range bad {
+		r := NewLineReader(strings.NewReader(line+"\n"), "board", start, fakeClock(start))
+		if got, _ := readAll(r); len(got) != 0 || r.SkippedCount() != 1 {
+			t.Errorf("%q read as %v", line, got)
+		}
+	}
+}

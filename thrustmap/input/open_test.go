@@ -1,7 +1,11 @@
+//go:build unix
+
 package input
 
 import (
+	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
 )
 
@@ -14,6 +18,10 @@ func TestDetectFormat(t *testing.T) {
 		{"/dev/serial/by-id/usb-board-if00", FormatSerial},
 		{"/tmp/lever.fifo", ""},
 		{"/dev/input/mouse0", ""},
+		{"/dev/cu.usbmodem14201", FormatSerial},
+		{"COM3", FormatSerial},
+		{`\\.\COM12`, FormatSerial},
+		{"joy:0", FormatJoy},
 	}
 	for _, tc := range tests {
 		got, err := DetectFormat(tc.path)
@@ -24,21 +32,30 @@ func TestDetectFormat(t *testing.T) {
 }
 
 func TestOpenDeviceErrors(t *testing.T) {
+	fifo := filepath.Join(t.TempDir(), "lever.fifo")
+	if err := syscall.Mkfifo(fifo, 0o600); err != nil {
+		t.Skipf("mkfifo: %v", err)
+	}
 	tests := []struct {
 		name, path, format string
 		axes               map[int]int
 		want               string
 	}{
-		{"unknown path", "/tmp/lever.fifo", "", nil, "cannot tell the input format"},
-		{"unknown format", "/tmp/x", "usb", nil, `format "usb": want evdev, js or serial`},
-		{"evdev code too large", "/tmp/x", FormatEvdev, map[int]int{64: 1}, "axis code 64: want an EV_ABS code from 0 to 63"},
-		{"js number too large", "/tmp/x", FormatJoystick, map[int]int{256: 1}, "axis number 256: want 0 to 255"},
-		{"serial with axes", "/tmp/x", FormatSerial, map[int]int{0: 1}, "an axis map does not apply"},
+		{"unknown path", fifo, "", nil, "cannot tell the input format"},
+		{"unknown format", fifo, "usb", nil, `format "usb": want evdev, js, serial, csv or joy`},
+		{"evdev code too large", fifo, FormatEvdev, map[int]int{64: 1}, "axis code 64: want an EV_ABS code from 0 to 63"},
+		{"js number too large", fifo, FormatJoystick, map[int]int{256: 1}, "axis number 256: want 0 to 255"},
+		{"serial with axes", fifo, FormatSerial, map[int]int{0: 1}, "an axis map does not apply"},
+		{"csv with axes", fifo, FormatCSV, map[int]int{0: 1}, "an axis map does not apply"},
+		{"joy format on a FIFO", fifo, FormatJoy, nil, "for game controllers named joy:N"},
 		{"missing device", t.TempDir() + "/event9", FormatEvdev, nil, "no such file"},
+		{"a directory", t.TempDir(), FormatEvdev, nil, "is a directory: want a device"},
+		{"controller number too large", "joy:16", "", nil, "N a game controller number from 0 to 15"},
+		{"no controllers here", "joy:0", "", nil, "game controllers are read as joy:N on Windows only"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			_, _, _, err := OpenDevice(tc.path, tc.format, tc.axes, 9600)
+			_, err := (&System{}).Open(tc.path, OpenOptions{Format: tc.format, Axes: tc.axes, Baud: 9600})
 			if err == nil || !strings.Contains(err.Error(), tc.want) {
 				t.Errorf("error %v, want it to contain %q", err, tc.want)
 			}
