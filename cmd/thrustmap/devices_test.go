@@ -135,14 +135,15 @@ func TestDevicesNone(t *testing.T) {
 	}
 }
 
-// TestDevicePermission: watch on a device the user may not read exits 2
-// with the fix.
+// TestDevicePermission: watch and record on a device the user may not read
+// exit 2 with the fix.
 func TestDevicePermission(t *testing.T) {
 	ft, s := quadrantTree(t)
 	useSystem(t, s)
 	event4 := filepath.Join(ft.root, "dev/input/event4")
 	for _, args := range [][]string{
 		append([]string{"watch", "--device", event4, "--format", "evdev"}, demoArgs...),
+		{"record", "--device", event4, "--format", "evdev", "-o", filepath.Join(t.TempDir(), "rec.csv")},
 	} {
 		var stdout, stderr bytes.Buffer
 		if c := run(args, &stdout, &stderr); c != exitUsage {
@@ -164,6 +165,7 @@ func TestDeviceAxes(t *testing.T) {
 	event3 := filepath.Join(ft.root, "dev/input/event3")
 	for _, args := range [][]string{
 		append([]string{"watch", "--device", event3, "--format", "evdev", "--axis", "ABS_Y=2", "--axis", "ABS_X=1"}, demoArgs...),
+		{"record", "--device", event3, "--format", "evdev", "--axis", "ABS_Y=2", "-o", filepath.Join(t.TempDir(), "rec.csv")},
 	} {
 		var stdout, stderr bytes.Buffer
 		if c := run(args, &stdout, &stderr); c != exitUsage {

@@ -86,6 +86,6 @@ Exit status: 0 ok, 1 checks failed, 2 bad input or usage.
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return fmt.Errorf("%s: %w (see %s --help)", c.CommandPath(), err, c.CommandPath())
 	})
-	root.AddCommand(newAtmosCmd(), newTargetCmd(), newLeverCmd(), newLeverRawCmd(), newSweepCmd(), newAddPointCmd(), newSynthSweepCmd(), newWatchCmd(), newDevicesCmd(), newShellCmd(), newRunCmd(), newVerifyCmd(), newPlotCmd(), newExportCmd(), newDemoCmd(), newInitCmd())
+	root.AddCommand(newAtmosCmd(), newTargetCmd(), newLeverCmd(), newLeverRawCmd(), newSweepCmd(), newAddPointCmd(), newSynthSweepCmd(), newWatchCmd(), newDevicesCmd(), newRecordCmd(), newShellCmd(), newRunCmd(), newVerifyCmd(), newPlotCmd(), newExportCmd(), newDemoCmd(), newInitCmd())
 	return root
 }

@@ -1,13 +1,11 @@
 package main
 
 import (
-	"bufio"
 	"errors"
 	"fmt"
 	"io"
 	"math"
 	"os"
-	"strconv"
 	"strings"
 	"text/tabwriter"
 
@@ -67,118 +65,166 @@ func (f *recordingFlags) register(cmd *cobra.Command) {
 	cmd.Flags().StringArrayVar(&f.axes, "axis", nil, "device axis to lever id, CODE=LEVER (evdev: ABS_X=1 or 0=1; js: axis number 0=1); default: axes 0, 1, 2… are levers 1, 2, 3…")
 }
 
-// open returns a reader of the recording at path and, for the joystick
-// interface, a warning about its rescaled counts.
-func (f *recordingFlags) open(path string) (input.Reader, func() ([]input.Skipped, int), string, io.Closer, error) {
-	file, err := os.Open(path)
-	if err != nil {
-		return nil, nil, "", nil, err
+// leverSource is what a source of readings knows besides its samples: a
+// warning about its counts, the lines it skipped, and each lever's device
+// range and axis where the source tells them.
+type leverSource struct {
+	warning      string
+	skipped      []input.Skipped
+	skippedCount int
+	ranges       map[int][2]float64 // lever → the device's range
+	axes         map[int]string     // lever → the device axis, as the calibration's axis key
+}
+
+// newLeverSource gathers what a device tells of its levers.
+func newLeverSource(d *input.Device) leverSource {
+	src := leverSource{warning: d.Warning, ranges: map[int][2]float64{}, axes: map[int]string{}}
+	src.skipped, src.skippedCount = d.Skipped()
+	for _, a := range d.Axes {
+		src.axes[a.Lever] = a.Name
+		if a.HasRange {
+			src.ranges[a.Lever] = [2]float64{a.Min, a.Max}
+		}
 	}
+	return src
+}
+
+// read reads the recording at path, calling fn with every sample in order.
+func (f *recordingFlags) read(path string, fn func(input.Sample)) (leverSource, error) {
 	format := f.format
 	if format == "" {
-		switch {
-		case strings.HasSuffix(path, ".evdev"):
-			format = "evdev"
-		case strings.HasSuffix(path, ".js"):
-			format = "js"
-		default:
-			format = "csv"
-		}
+		format = input.FileFormat(path)
 	}
-	none := func() ([]input.Skipped, int) { return nil, 0 }
-	r := bufio.NewReaderSize(file, 1<<16)
-	switch format {
-	case "csv":
-		cr := input.NewCSVReader(r, path)
-		return cr, func() ([]input.Skipped, int) { return cr.Skipped(), cr.SkippedCount() }, "", file, nil
-	case "evdev":
-		axes := map[uint16]int{}
-		for i := range 8 {
-			axes[uint16(i)] = i + 1
-		}
-		if len(f.axes) > 0 {
-			axes = map[uint16]int{}
-			for _, a := range f.axes {
-				code, lever, err := splitAxis(a)
-				if err != nil {
-					file.Close()
-					return nil, nil, "", nil, err
-				}
-				c, err := input.ParseAbsCode(code)
-				if err != nil {
-					file.Close()
-					return nil, nil, "", nil, fmt.Errorf("--axis %q: %w", a, err)
-				}
-				axes[c] = lever
-			}
-		}
-		return input.NewEvdevReader(r, axes), none, "", file, nil
-	case "js":
-		axes := map[uint8]int{}
-		for i := range 8 {
-			axes[uint8(i)] = i + 1
-		}
-		if len(f.axes) > 0 {
-			axes = map[uint8]int{}
-			for _, a := range f.axes {
-				code, lever, err := splitAxis(a)
-				if err != nil {
-					file.Close()
-					return nil, nil, "", nil, err
-				}
-				n, err := strconv.ParseUint(code, 0, 8)
-				if err != nil {
-					file.Close()
-					return nil, nil, "", nil, fmt.Errorf("--axis %q: joystick axes are numbers 0 to 255", a)
-				}
-				axes[uint8(n)] = lever
-			}
-		}
-		jr := input.NewJoystickReader(r, axes)
-		return jr, none, jr.Warning(), file, nil
+	axes, err := parseAxisArgs(format, f.axes)
+	if err != nil {
+		return leverSource{}, err
 	}
-	file.Close()
-	return nil, nil, "", nil, fmt.Errorf("--format %q: want csv, evdev or js", format)
+	d, err := devSystem.Open(path, input.OpenOptions{Format: format, Axes: axes})
+	if err != nil {
+		return leverSource{}, err
+	}
+	defer d.Close()
+	for {
+		s, err := d.Next()
+		if errors.Is(err, io.EOF) {
+			return newLeverSource(d), nil
+		}
+		if err != nil {
+			return leverSource{}, err
+		}
+		fn(s)
+	}
 }
 
 // each reads the recording at path, calling fn with every sample in order;
 // it returns the reader's skipped lines and, for the joystick interface, the
 // warning about its rescaled counts.
 func (f *recordingFlags) each(path string, fn func(input.Sample)) (skipped func() ([]input.Skipped, int), warning string, err error) {
-	reader, skipped, warning, closer, err := f.open(path)
+	src, err := f.read(path, fn)
 	if err != nil {
 		return nil, "", err
 	}
-	defer closer.Close()
-	for {
-		s, err := reader.Next()
-		if errors.Is(err, io.EOF) {
-			return skipped, warning, nil
-		}
-		if err != nil {
-			return nil, "", err
-		}
-		fn(s)
-	}
+	return func() ([]input.Skipped, int) { return src.skipped, src.skippedCount }, src.warning, nil
 }
 
-func splitAxis(s string) (string, int, error) {
-	code, lever, ok := strings.Cut(s, "=")
-	n, err := strconv.Atoi(lever)
-	if !ok || err != nil {
-		return "", 0, fmt.Errorf("--axis %q: want CODE=LEVER, e.g. ABS_Z=2", s)
+// calFlags choose how a sweep becomes a calibration.
+type calFlags struct {
+	rawMin, rawMax float64
+	fit, orient    string
+}
+
+func (f *calFlags) register(cmd *cobra.Command) {
+	cmd.Flags().Float64Var(&f.rawMin, "raw-min", 0, "the device's lowest raw count (default: as the device reports it, or guessed from the readings)")
+	cmd.Flags().Float64Var(&f.rawMax, "raw-max", 0, "the device's highest raw count")
+	cmd.Flags().StringVar(&f.fit, "fit", "linear", "calibration fit: linear or monotone")
+	cmd.Flags().StringVar(&f.orient, "orientation", "auto", "which way raw counts run: auto, forward or inverted")
+}
+
+// options checks the flags and returns the calibration options.
+func (f *calFlags) options(cmd *cobra.Command) (sweep.CalOptions, error) {
+	o := sweep.CalOptions{RawMin: f.rawMin, RawMax: f.rawMax, HasRange: cmd.Flags().Changed("raw-min") || cmd.Flags().Changed("raw-max")}
+	if o.HasRange && !(cmd.Flags().Changed("raw-min") && cmd.Flags().Changed("raw-max")) {
+		return o, fmt.Errorf("--raw-min and --raw-max go together")
 	}
-	return code, n, nil
+	var err error
+	if o.Fit, err = grid.ParseMethod(f.fit); err != nil {
+		return o, fmt.Errorf("--fit: %w", err)
+	}
+	switch f.orient {
+	case "auto":
+	case "forward":
+		o.Orientation = sweep.Forward
+	case "inverted":
+		o.Orientation = sweep.Inverted
+	default:
+		return o, fmt.Errorf("--orientation %q: want auto, forward or inverted", f.orient)
+	}
+	return o, nil
+}
+
+// calibrateSweep matches every lever the analyzer has seen to profile p's
+// notches (sweep.Calibrate), writes the calibration to out atomically
+// (keeping out.bak and the levers already in out that were not seen) and
+// returns the sweep report. A lever's device range is the one given in o,
+// else the one the source reports, else guessed from the readings; its axis
+// key is the source's axis. The error lists the levers that could not be
+// calibrated; when none could, nothing is written.
+func calibrateSweep(p *thrustmap.Profile, an *sweep.Analyzer, out string, o sweep.CalOptions, src leverSource) (sweepJSON, error) {
+	report := sweepJSON{SkippedLines: src.skipped, SkippedCount: src.skippedCount}
+	if report.SkippedLines == nil {
+		report.SkippedLines = []input.Skipped{}
+	}
+	cal, err := existingCalibration(out)
+	if err != nil {
+		return report, err
+	}
+	ids := an.Levers()
+	var failed []string
+	for _, id := range ids {
+		sc, _ := an.Scan(id)
+		lo := o
+		if r, ok := src.ranges[id]; ok && !o.HasRange {
+			lo.RawMin, lo.RawMax, lo.HasRange = r[0], r[1], true
+		}
+		res, err := sweep.Calibrate(p, sc, lo)
+		lj := newSweepLeverJSON(sc, res)
+		if src.warning != "" {
+			lj.Warnings = append([]string{src.warning}, lj.Warnings...)
+		}
+		if err != nil {
+			lj.Error = err.Error()
+			failed = append(failed, err.Error())
+		} else {
+			res.Spec.Axis = src.axes[id]
+			l, err := thrustmap.NewLeverCalibration(res.Spec)
+			if err != nil {
+				return report, err
+			}
+			cal = cal.With(l)
+		}
+		report.Levers = append(report.Levers, lj)
+	}
+	if len(failed) < len(ids) {
+		if err := atomicfile.WriteFile(out, cal.Encode(), 0o644, true); err != nil {
+			return report, err
+		}
+		report.Calibration = out
+	}
+	if len(failed) > 0 {
+		return report, errors.New(strings.Join(failed, "; "))
+	}
+	return report, nil
 }
 
 func newSweepCmd() *cobra.Command {
 	var rf recordingFlags
-	var profile, out, fit, orient string
+	var cf calFlags
+	var live liveFlags
+	var profile, out string
 	var lever int
-	var rawMin, rawMax float64
 	var asJSON bool
 	cmd := &cobra.Command{
-		Use:   "sweep RECORDING -p PROFILE -o CAL [--lever N]",
+		Use:   "sweep RECORDING -p PROFILE -o CAL [--lever N] (or --device PATH|joy:N for RECORDING)",
 		Short: "Calibrate levers from a recording of them moved end to end and rested in each notch",
 		Long: `sweep analyses a recording of each lever moved from one end stop to the other
 and rested (a second or so) at each end and in each notch. It finds the rests,
@@ -192,85 +238,65 @@ already in CAL and not in the recording are kept.
 Recordings: CSV with a header t_ms,lever,raw (other columns ignored; bad lines
 are skipped and reported with their line numbers), Linux evdev captures
 (struct input_event records, .evdev) or joystick-interface captures
-(struct js_event records, .js; the driver rescales counts).
+(struct js_event records, .js; the driver rescales counts). For a capture the
+device axis of each lever is written as its axis key, for watch.
+
+With --device instead of a recording, sweep reads the levers live (a device,
+joy:N, a serial port or a FIFO, as record does, with the same live view)
+until Enter, Ctrl-C or --seconds, then calibrates; the readings are not kept:
+thrustmap record -o REC.csv --calibrate CAL keeps them. The device's own range
+(evdev, game controllers) is the calibration's device range unless --raw-min
+and --raw-max are given.
 
 A sweep cannot see pot taper between notches: add points at known angles with
 add-point.
 
 ` + safetyNote,
-		Args: cobra.ExactArgs(1),
+		Args: cobra.MaximumNArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			if profile == "" || out == "" {
 				return fmt.Errorf("-p PROFILE and -o CAL are required")
+			}
+			if (len(args) == 1) == (live.device != "") {
+				return fmt.Errorf("give a RECORDING or --device PATH|joy:N, not both and not neither")
 			}
 			p, err := thrustmap.LoadProfile(profile)
 			if err != nil {
 				return err
 			}
-			o := sweep.CalOptions{RawMin: rawMin, RawMax: rawMax, HasRange: cmd.Flags().Changed("raw-min") || cmd.Flags().Changed("raw-max")}
-			if o.HasRange && !(cmd.Flags().Changed("raw-min") && cmd.Flags().Changed("raw-max")) {
-				return fmt.Errorf("--raw-min and --raw-max go together")
-			}
-			if o.Fit, err = grid.ParseMethod(fit); err != nil {
-				return fmt.Errorf("--fit: %w", err)
-			}
-			switch orient {
-			case "auto":
-			case "forward":
-				o.Orientation = sweep.Forward
-			case "inverted":
-				o.Orientation = sweep.Inverted
-			default:
-				return fmt.Errorf("--orientation %q: want auto, forward or inverted", orient)
+			o, err := cf.options(cmd)
+			if err != nil {
+				return err
 			}
 			an := sweep.NewAnalyzer(sweep.Options{})
-			skipped, warning, err := rf.each(args[0], func(s input.Sample) {
-				if lever == 0 || s.Lever == lever {
-					an.Add(s)
-				}
-			})
-			if err != nil {
-				return err
-			}
-			report := sweepJSON{}
-			report.SkippedLines, report.SkippedCount = skipped()
-			if report.SkippedLines == nil {
-				report.SkippedLines = []input.Skipped{}
-			}
-			ids := an.Levers()
-			if len(ids) == 0 {
-				return fmt.Errorf("%s: no samples%s", args[0], map[bool]string{true: fmt.Sprintf(" of lever %d", lever), false: ""}[lever != 0])
-			}
-			cal, err := existingCalibration(out)
-			if err != nil {
-				return err
-			}
-			var failed []string
-			for _, id := range ids {
-				sc, _ := an.Scan(id)
-				res, err := sweep.Calibrate(p, sc, o)
-				lj := newSweepLeverJSON(sc, res)
-				if warning != "" {
-					lj.Warnings = append([]string{warning}, lj.Warnings...)
-				}
-				if err != nil {
-					lj.Error = err.Error()
-					failed = append(failed, err.Error())
-				} else {
-					l, err := thrustmap.NewLeverCalibration(res.Spec)
-					if err != nil {
-						return err
+			var src leverSource
+			name := live.device
+			if live.device != "" {
+				live.format, live.axisArgs = rf.format, rf.axes
+				rec, d, err := live.record(cmd, p, func(s input.Sample) {
+					if lever == 0 || s.Lever == lever {
+						an.Add(s)
 					}
-					cal = cal.With(l)
-				}
-				report.Levers = append(report.Levers, lj)
-			}
-			if len(failed) < len(ids) {
-				if err := atomicfile.WriteFile(out, cal.Encode(), 0o644, true); err != nil {
+				})
+				if err != nil {
 					return err
 				}
-				report.Calibration = out
+				rec.describeStop(cmd.ErrOrStderr(), "")
+				src = newLeverSource(d)
+			} else {
+				name = args[0]
+				if src, err = rf.read(args[0], func(s input.Sample) {
+					if lever == 0 || s.Lever == lever {
+						an.Add(s)
+					}
+				}); err != nil {
+					return err
+				}
 			}
+			if len(an.Levers()) == 0 {
+				return fmt.Errorf("%s: no samples%s", name, map[bool]string{true: fmt.Sprintf(" of lever %d", lever), false: ""}[lever != 0])
+			}
+			report, calErr := calibrateSweep(p, an, out, o, src)
 			if asJSON {
 				if err := writeJSON(cmd.OutOrStdout(), report); err != nil {
 					return err
@@ -278,20 +304,15 @@ add-point.
 			} else {
 				printSweep(cmd.OutOrStdout(), report)
 			}
-			if len(failed) > 0 {
-				return errors.New(strings.Join(failed, "; "))
-			}
-			return nil
+			return calErr
 		},
 	}
 	rf.register(cmd)
+	cf.register(cmd)
+	live.register(cmd)
 	cmd.Flags().StringVarP(&profile, "profile", "p", "", "profile file or embedded profile name")
 	cmd.Flags().StringVarP(&out, "out", "o", "", "calibration file to write (levers not in the recording are kept)")
 	cmd.Flags().IntVar(&lever, "lever", 0, "calibrate only this lever id (default: every lever in the recording)")
-	cmd.Flags().Float64Var(&rawMin, "raw-min", 0, "the device's lowest raw count (default: guessed from the readings)")
-	cmd.Flags().Float64Var(&rawMax, "raw-max", 0, "the device's highest raw count")
-	cmd.Flags().StringVar(&fit, "fit", "linear", "calibration fit: linear or monotone")
-	cmd.Flags().StringVar(&orient, "orientation", "auto", "which way raw counts run: auto, forward or inverted")
 	cmd.Flags().BoolVar(&asJSON, "json", false, "print JSON")
 	return cmd
 }
