@@ -273,14 +273,11 @@ func (g *cGen) addGate(i int, gt thrustmap.Gate) error {
 		if !e.fast {
 			return fmt.Errorf("%w: gate %q: %s %q runs on expr-lang's VM, outside the allocation-free subset the C export translates (numbers, the environment's variables, + - * / **, comparisons, && || !, ?:, rating, rating_at, assumed, bleed, isa_temp, clamp, lerp, min, max, abs)", ErrCExport, gt.Name, e.key, e.src)
 		}
-		tr := &cExprTr{g: g}
-		var body string
-		var err error
+		want := cNumber
 		if e.boolean {
-			body, err = tr.boolean(e.node)
-		} else {
-			body, err = tr.number(e.node)
+			want = cTruth
 		}
+		body, err := (&cExprTr{g: g}).expr(e.node, want)
 		if err != nil {
 			return fmt.Errorf("%w: gate %q: %s %q: %v", ErrCExport, gt.Name, e.key, e.src, err)
 		}
@@ -365,247 +362,220 @@ func (g *cGen) addLever(l *thrustmap.LeverCalibration, gates []thrustmap.Gate) e
 	return nil
 }
 
-// cExprTr translates the expression subset of thrustmap's fastexpr.go,
-// node for node, into fully parenthesised C. It accepts exactly the shapes
-// fastNumber and fastBool accept.
+// cValue is the kind of value a gate expression's node gives.
+type cValue int
+
+const (
+	cNumber cValue = iota // a float64, a C double
+	cTruth                // a bool, a C int that is 0 or 1
+)
+
+func (v cValue) String() string {
+	if v == cTruth {
+		return "true or false"
+	}
+	return "a number"
+}
+
+// cExprTr translates the expression subset of thrustmap's fastexpr.go into
+// fully parenthesised C, in one walk: each node is translated for the kind
+// of value its place wants, and a node that gives the other kind, or that
+// fastNumber and fastBool do not accept, is refused there.
 type cExprTr struct{ g *cGen }
 
-func (t *cExprTr) number(n ast.Node) (string, error) {
+// cVariables are the environment's variables, in the C's evaluation context x.
+var cVariables = map[string]struct {
+	kind cValue
+	code string
+}{
+	"alt": {cNumber, "x->cond.alt_ft"}, "oat": {cNumber, "x->cond.oat_c"}, "tat": {cNumber, "x->tat"},
+	"isa_dev": {cNumber, "x->isa_dev"}, "mach": {cNumber, "x->cond.mach"}, "tla": {cNumber, "x->tla"},
+	"assumed_temp": {cNumber, "x->assumed_temp"},
+	"on_ground":    {cTruth, "(x->cond.on_ground != 0)"}, "assumed_set": {cTruth, "(x->cond.assumed_set != 0)"},
+}
+
+// cOperators are the binary operators: the kind of their operands, the kind
+// they give, and their C with the operands for %s.
+var cOperators = map[string]struct {
+	operands, gives cValue
+	format          string
+}{
+	"+": {cNumber, cNumber, "(%s + %s)"}, "-": {cNumber, cNumber, "(%s - %s)"},
+	"*": {cNumber, cNumber, "(%s * %s)"}, "/": {cNumber, cNumber, "(%s / %s)"},
+	"**": {cNumber, cNumber, "pow(%s, %s)"}, "^": {cNumber, cNumber, "pow(%s, %s)"},
+	"<": {cNumber, cTruth, "(%s < %s)"}, "<=": {cNumber, cTruth, "(%s <= %s)"},
+	">": {cNumber, cTruth, "(%s > %s)"}, ">=": {cNumber, cTruth, "(%s >= %s)"},
+	"==": {cNumber, cTruth, "(%s == %s)"}, "!=": {cNumber, cTruth, "(%s != %s)"},
+	"&&": {cTruth, cTruth, "(%s && %s)"}, "and": {cTruth, cTruth, "(%s && %s)"},
+	"||": {cTruth, cTruth, "(%s || %s)"}, "or": {cTruth, cTruth, "(%s || %s)"},
+}
+
+// expr is the C of node n as the kind of value want.
+func (t *cExprTr) expr(n ast.Node, want cValue) (string, error) {
+	code, gives, err := t.node(n, want)
+	if err != nil {
+		return "", err
+	}
+	if code == "" || gives != want {
+		return "", fmt.Errorf("%s (%s) as %s is outside the subset the C export translates",
+			n.String(), strings.TrimPrefix(fmt.Sprintf("%T", n), "*ast."), want)
+	}
+	return code, nil
+}
+
+// node translates n and says which kind of value it gives; code "" when it
+// has no translation. want is passed down where a node gives what its
+// place wants (the branches of ?:).
+func (t *cExprTr) node(n ast.Node, want cValue) (code string, gives cValue, err error) {
 	switch n := n.(type) {
 	case *ast.IntegerNode:
-		return cExprNum(float64(n.Value)), nil
+		return cExprNum(float64(n.Value)), cNumber, nil
 	case *ast.FloatNode:
-		return cExprNum(n.Value), nil
+		return cExprNum(n.Value), cNumber, nil
+	case *ast.BoolNode:
+		return cBool(n.Value), cTruth, nil
 	case *ast.ConstantNode:
 		switch v := n.Value.(type) {
 		case float64:
-			return cExprNum(v), nil
+			return cExprNum(v), cNumber, nil
 		case int:
-			return cExprNum(float64(v)), nil
+			return cExprNum(float64(v)), cNumber, nil
+		case bool:
+			return cBool(v), cTruth, nil
 		}
 	case *ast.IdentifierNode:
-		if v, ok := map[string]string{
-			"alt": "x->cond.alt_ft", "oat": "x->cond.oat_c", "tat": "x->tat", "isa_dev": "x->isa_dev",
-			"mach": "x->cond.mach", "tla": "x->tla", "assumed_temp": "x->assumed_temp",
-		}[n.Value]; ok {
-			return v, nil
+		if v, ok := cVariables[n.Value]; ok {
+			return v.code, v.kind, nil
 		}
 	case *ast.UnaryNode:
-		x, err := t.number(n.Node)
-		if err != nil {
-			return "", err
-		}
+		kind, format := cNumber, "(-%s)"
 		switch n.Operator {
-		case "-":
-			return "(-" + x + ")", nil
 		case "+":
-			return x, nil
+			format = "%s"
+		case "!", "not":
+			kind, format = cTruth, "(!%s)"
+		case "-":
+		default:
+			return "", want, nil
 		}
+		x, err := t.expr(n.Node, kind)
+		return fmt.Sprintf(format, x), kind, err
 	case *ast.BinaryNode:
-		a, err := t.number(n.Left)
+		op, ok := cOperators[n.Operator]
+		if !ok {
+			break
+		}
+		a, err := t.expr(n.Left, op.operands)
 		if err != nil {
-			return "", err
+			return "", want, err
 		}
-		b, err := t.number(n.Right)
-		if err != nil {
-			return "", err
-		}
-		switch n.Operator {
-		case "+", "-", "*", "/":
-			return "(" + a + " " + n.Operator + " " + b + ")", nil
-		case "**", "^":
-			return "pow(" + a + ", " + b + ")", nil
-		}
+		b, err := t.expr(n.Right, op.operands)
+		return fmt.Sprintf(op.format, a, b), op.gives, err
 	case *ast.ConditionalNode:
-		c, err := t.boolean(n.Cond)
+		c, err := t.expr(n.Cond, cTruth)
 		if err != nil {
-			return "", err
+			return "", want, err
 		}
-		a, err := t.number(n.Exp1)
+		a, err := t.expr(n.Exp1, want)
 		if err != nil {
-			return "", err
+			return "", want, err
 		}
-		b, err := t.number(n.Exp2)
-		if err != nil {
-			return "", err
-		}
-		return "(" + c + " ? " + a + " : " + b + ")", nil
+		b, err := t.expr(n.Exp2, want)
+		return "(" + c + " ? " + a + " : " + b + ")", want, err
 	case *ast.CallNode:
 		return t.call(n)
 	case *ast.BuiltinNode:
-		var args []string
-		for _, a := range n.Arguments {
-			s, err := t.number(a)
-			if err != nil {
-				return "", err
-			}
-			args = append(args, s)
+		args, err := t.numbers(n.Arguments)
+		if err != nil {
+			return "", want, err
 		}
 		switch {
 		case n.Name == "abs" && len(args) == 1:
-			return "fabs(" + args[0] + ")", nil
+			return "fabs(" + args[0] + ")", cNumber, nil
 		case n.Name == "min" && len(args) == 2:
 			t.g.uses["min"] = true
-			return "engine__math_min(" + args[0] + ", " + args[1] + ")", nil
+			return "engine__math_min(" + args[0] + ", " + args[1] + ")", cNumber, nil
 		case n.Name == "max" && len(args) == 2:
 			t.g.uses["max"] = true
-			return "engine__math_max(" + args[0] + ", " + args[1] + ")", nil
+			return "engine__math_max(" + args[0] + ", " + args[1] + ")", cNumber, nil
 		}
 	}
-	return "", unsupported(n, "a number")
+	return "", want, nil
 }
 
-func (t *cExprTr) call(n *ast.CallNode) (string, error) {
+// numbers translates arguments that must be numbers.
+func (t *cExprTr) numbers(args []ast.Node) ([]string, error) {
+	out := make([]string, 0, len(args))
+	for _, a := range args {
+		s, err := t.expr(a, cNumber)
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, s)
+	}
+	return out, nil
+}
+
+// call translates the environment's functions; a name argument must be a
+// quoted constant, resolved here.
+func (t *cExprTr) call(n *ast.CallNode) (string, cValue, error) {
 	id, ok := n.Callee.(*ast.IdentifierNode)
 	if !ok {
-		return "", unsupported(n, "a number")
+		return "", cNumber, nil
 	}
 	args := n.Arguments
-	rating := func() int {
-		if len(args) == 0 {
-			return -1
-		}
+	name, named := "", false // the first argument, when a quoted name
+	if len(args) > 0 {
 		if s, ok := args[0].(*ast.StringNode); ok {
-			return t.g.ratingIndex(s.Value)
+			name, named = s.Value, true
 		}
-		return -1
-	}
-	nums := func(from int) ([]string, error) {
-		var out []string
-		for _, a := range args[from:] {
-			s, err := t.number(a)
-			if err != nil {
-				return nil, err
-			}
-			out = append(out, s)
-		}
-		return out, nil
 	}
 	switch id.Value {
+	case "bleed":
+		if len(args) != 1 || !named {
+			break
+		}
+		i := slices.Index(t.g.p.Bleeds(), name)
+		if i < 0 || i >= thrustmap.MaxBleeds {
+			return "0", cTruth, nil // as Bleeds.Has for a bleed the profile lacks
+		}
+		return fmt.Sprintf("(((x->cond.bleeds >> %d) & 1u) != 0)", i), cTruth, nil
 	case "rating", "assumed":
-		r := rating()
-		if r < 0 || len(args) != 1 {
+		r := t.g.ratingIndex(name)
+		if !named || r < 0 || len(args) != 1 {
 			break
 		}
 		t.g.uses[id.Value] = true
-		return fmt.Sprintf("engine__e_%s(x, %d)", id.Value, r), nil
+		return fmt.Sprintf("engine__e_%s(x, %d)", id.Value, r), cNumber, nil
 	case "rating_at":
-		r := rating()
-		f, err := nums(min(1, len(args)))
+		r := t.g.ratingIndex(name)
+		f, err := t.numbers(args[min(1, len(args)):])
 		if err != nil {
-			return "", err
+			return "", cNumber, err
 		}
-		if r < 0 || len(f) != 2 {
+		if !named || r < 0 || len(f) != 2 {
 			break
 		}
 		t.g.uses["rating_at"] = true
-		return fmt.Sprintf("engine__e_rating_at(x, %d, %s, %s)", r, f[0], f[1]), nil
+		return fmt.Sprintf("engine__e_rating_at(x, %d, %s, %s)", r, f[0], f[1]), cNumber, nil
 	case "isa_temp", "clamp", "lerp":
-		f, err := nums(0)
+		f, err := t.numbers(args)
 		if err != nil {
-			return "", err
+			return "", cNumber, err
 		}
 		switch {
 		case id.Value == "isa_temp" && len(f) == 1:
 			t.g.uses["isa_temp"] = true
-			return "engine__e_isa_temp(x, " + f[0] + ")", nil
+			return "engine__e_isa_temp(x, " + f[0] + ")", cNumber, nil
 		case id.Value == "clamp" && len(f) == 3:
 			t.g.uses["min"], t.g.uses["max"] = true, true
-			return "engine__math_max(" + f[1] + ", engine__math_min(" + f[2] + ", " + f[0] + "))", nil
+			return "engine__math_max(" + f[1] + ", engine__math_min(" + f[2] + ", " + f[0] + "))", cNumber, nil
 		case id.Value == "lerp" && len(f) == 3:
 			t.g.uses["lerp"] = true
-			return "engine__e_lerp(" + f[0] + ", " + f[1] + ", " + f[2] + ")", nil
+			return "engine__e_lerp(" + f[0] + ", " + f[1] + ", " + f[2] + ")", cNumber, nil
 		}
 	}
-	return "", unsupported(n, "a number")
-}
-
-func (t *cExprTr) boolean(n ast.Node) (string, error) {
-	switch n := n.(type) {
-	case *ast.BoolNode:
-		return cBool(n.Value), nil
-	case *ast.ConstantNode:
-		if v, ok := n.Value.(bool); ok {
-			return cBool(v), nil
-		}
-	case *ast.IdentifierNode:
-		switch n.Value {
-		case "on_ground":
-			return "(x->cond.on_ground != 0)", nil
-		case "assumed_set":
-			return "(x->cond.assumed_set != 0)", nil
-		}
-	case *ast.UnaryNode:
-		if n.Operator == "!" || n.Operator == "not" {
-			x, err := t.boolean(n.Node)
-			if err != nil {
-				return "", err
-			}
-			return "(!" + x + ")", nil
-		}
-	case *ast.CallNode:
-		id, ok := n.Callee.(*ast.IdentifierNode)
-		if !ok || id.Value != "bleed" || len(n.Arguments) != 1 {
-			break
-		}
-		name, ok := n.Arguments[0].(*ast.StringNode)
-		if !ok {
-			break
-		}
-		i := slices.Index(t.g.p.Bleeds(), name.Value)
-		if i < 0 || i >= thrustmap.MaxBleeds {
-			return "0", nil
-		}
-		return fmt.Sprintf("(((x->cond.bleeds >> %d) & 1u) != 0)", i), nil
-	case *ast.BinaryNode:
-		switch n.Operator {
-		case "&&", "and", "||", "or":
-			a, err := t.boolean(n.Left)
-			if err != nil {
-				return "", err
-			}
-			b, err := t.boolean(n.Right)
-			if err != nil {
-				return "", err
-			}
-			op := "&&"
-			if n.Operator == "||" || n.Operator == "or" {
-				op = "||"
-			}
-			return "(" + a + " " + op + " " + b + ")", nil
-		}
-		a, err := t.number(n.Left)
-		if err != nil {
-			return "", err
-		}
-		b, err := t.number(n.Right)
-		if err != nil {
-			return "", err
-		}
-		switch n.Operator {
-		case "<", "<=", ">", ">=", "==", "!=":
-			return "(" + a + " " + n.Operator + " " + b + ")", nil
-		}
-	case *ast.ConditionalNode:
-		c, err := t.boolean(n.Cond)
-		if err != nil {
-			return "", err
-		}
-		a, err := t.boolean(n.Exp1)
-		if err != nil {
-			return "", err
-		}
-		b, err := t.boolean(n.Exp2)
-		if err != nil {
-			return "", err
-		}
-		return "(" + c + " ? " + a + " : " + b + ")", nil
-	}
-	return "", unsupported(n, "true or false")
-}
-
-func unsupported(n ast.Node, want string) error {
-	return fmt.Errorf("%s (%s) as %s is outside the subset the C export translates", n.String(), strings.TrimPrefix(fmt.Sprintf("%T", n), "*ast."), want)
+	return "", cNumber, nil
 }
 
 func cBool(b bool) string {

@@ -7,6 +7,10 @@ import (
 	"sort"
 	"strings"
 	"testing"
+
+	"github.com/expr-lang/expr/parser"
+
+	"github.com/thrustmap/thrustmap/thrustmap"
 )
 
 // TestCRuntimeCompiles compiles the runtime files as they are in cruntime/,
@@ -77,4 +81,65 @@ func keys(m map[string]bool) string {
 	}
 	sort.Strings(out)
 	return "[" + strings.Join(out, " ") + "]"
+}
+
+// TestCExprOneWalk translates expressions for the kind of value their place
+// wants: the C is written out by hand from the operators' meaning in
+// expr-lang (docs/expressions.md), and a node of the other kind is refused
+// where it stands, not at the top.
+func TestCExprOneWalk(t *testing.T) {
+	m, err := thrustmap.LoadModel(filepath.Join("testdata", "c", "exprs.toml"), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	g, err := newCGen(m, COptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct {
+		src     string
+		want    cValue
+		c       string // the C, or "" for a refusal
+		refused string // the node the refusal names
+	}{
+		{"1 + 2 * oat", cNumber, "(1.0 + (2.0 * x->cond.oat_c))", ""},
+		{"-mach ** 2", cNumber, "(-pow(x->cond.mach, 2.0))", ""}, // ** binds tighter than unary minus, as in algebra
+		{"on_ground && mach > 0.3 || !assumed_set", cTruth, "(((x->cond.on_ground != 0) && (x->cond.mach > 0.3)) || (!(x->cond.assumed_set != 0)))", ""},
+		{"on_ground ? 1 : alt / 1000", cNumber, "((x->cond.on_ground != 0) ? 1.0 : (x->cond.alt_ft / 1000.0))", ""},
+		{"on_ground ? true : mach >= 0.5", cTruth, "((x->cond.on_ground != 0) ? 1 : (x->cond.mach >= 0.5))", ""},
+		{"bleed('wai')", cTruth, "(((x->cond.bleeds >> 1) & 1u) != 0)", ""},
+		{"bleed('no-such-bleed') or false", cTruth, "(0 || 0)", ""},
+		{"clamp(oat, 0, 1)", cNumber, "engine__math_max(0.0, engine__math_min(1.0, x->cond.oat_c))", ""},
+		{"abs(tla - 3)", cNumber, "fabs((x->tla - 3.0))", ""},
+		{"rating('climb') + rating_at('derate', alt, -oat)", cNumber, "(engine__e_rating(x, 4) + engine__e_rating_at(x, 1, x->cond.alt_ft, (-x->cond.oat_c)))", ""},
+		// The other kind, refused at the node that gives it.
+		{"mach", cTruth, "", "mach (IdentifierNode) as true or false"},
+		{"on_ground", cNumber, "", "on_ground (IdentifierNode) as a number"},
+		{"1 + (mach > 0.5)", cNumber, "", "mach > 0.5 (BinaryNode) as a number"},
+		{"-on_ground", cNumber, "", "on_ground (IdentifierNode) as a number"},
+		{"!mach", cTruth, "", "mach (IdentifierNode) as true or false"},
+		{"on_ground == true", cTruth, "", "on_ground (IdentifierNode) as a number"},
+		{"bleed('wai') + 1", cNumber, "", `bleed("wai") (CallNode) as a number`},
+		{"on_ground ? 1 : true", cNumber, "", "true (BoolNode) as a number"},
+		{"min(on_ground, 1)", cNumber, "", "on_ground (IdentifierNode) as a number"},
+		// Outside the subset whatever is wanted.
+		{"oat % 2", cNumber, "", "oat % 2 (BinaryNode) as a number"},
+		{"rating('no-such-rating')", cNumber, "", `rating("no-such-rating") (CallNode) as a number`},
+	} {
+		tree, err := parser.Parse(tc.src)
+		if err != nil {
+			t.Fatalf("%s: %v", tc.src, err)
+		}
+		got, err := (&cExprTr{g: g}).expr(tree.Node, tc.want)
+		switch {
+		case tc.c != "" && err != nil:
+			t.Errorf("%s as %s: %v", tc.src, tc.want, err)
+		case tc.c != "" && got != tc.c:
+			t.Errorf("%s as %s:\n got %s\nwant %s", tc.src, tc.want, got, tc.c)
+		case tc.c == "" && err == nil:
+			t.Errorf("%s as %s: got %s, want a refusal", tc.src, tc.want, got)
+		case tc.c == "" && !strings.HasPrefix(err.Error(), tc.refused):
+			t.Errorf("%s as %s: refusal %q does not start with %q", tc.src, tc.want, err, tc.refused)
+		}
+	}
 }
