@@ -284,3 +284,92 @@ func (f *benchFloor) command(raw float64, c *Conditions) float64 {
 
 // sink keeps benchmark results alive so the compiler cannot drop the work.
 var sink float64
+
+// BenchmarkCommandFrame4 commands a quadrant: four levers a frame at the
+// conditions of that frame, through one Frame, so the gate targets are
+// worked out once a frame. One op is one lever; compare with
+// BenchmarkCommandQuadrant (the same levers each on its own) and
+// BenchmarkBaseline.
+func BenchmarkCommandFrame4(b *testing.B) {
+	benchQuadrant(b, quadrantModel(b, benchGatesTOML()), true)
+}
+
+// BenchmarkCommandQuadrant is BenchmarkCommandFrame4 without the Frame:
+// every lever works out its gate targets itself.
+func BenchmarkCommandQuadrant(b *testing.B) {
+	benchQuadrant(b, quadrantModel(b, benchGatesTOML()), false)
+}
+
+// BenchmarkCommandFrame4Expr and BenchmarkCommandQuadrantExpr are the pair
+// above on the EPR demo, whose forward gate is an expression: there the
+// frame saves an expression evaluation per lever.
+func BenchmarkCommandFrame4Expr(b *testing.B) { benchQuadrant(b, demoQuadrant(b), true) }
+
+// BenchmarkCommandQuadrantExpr: see BenchmarkCommandFrame4Expr.
+func BenchmarkCommandQuadrantExpr(b *testing.B) { benchQuadrant(b, demoQuadrant(b), false) }
+
+// quadrantModel is a profile with four levers calibrated alike.
+func quadrantModel(b *testing.B, profile string) *Model {
+	p, err := ParseProfile("bench.toml", []byte(profile))
+	if err != nil {
+		b.Fatal(err)
+	}
+	var levers []*LeverCalibration
+	for id := 1; id <= 4; id++ {
+		l, err := NewLeverCalibration(LeverSpec{ID: id, RawMin: 0, RawMax: 4095, Fit: grid.Linear,
+			Points: [][2]float64{{200, 0}, {1500, 20}, {2400, 27}, {3300, 40}, {3900, 55}}, Deadband: 1})
+		if err != nil {
+			b.Fatal(err)
+		}
+		levers = append(levers, l)
+	}
+	cal, _ := NewCalibration(levers...)
+	m, err := NewModel(p, cal)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return m
+}
+
+// demoQuadrant is the EPR demo with its four levers' built-in calibration.
+func demoQuadrant(b *testing.B) *Model {
+	m, err := LoadModel("demo-epr", "demo-epr")
+	if err != nil {
+		b.Fatal(err)
+	}
+	if n := len(m.Calibration().Levers()); n != 4 {
+		b.Fatalf("the EPR demo calibrates %d levers, want 4", n)
+	}
+	return m
+}
+
+func benchQuadrant(b *testing.B, m *Model, framed bool) {
+	ids := make([]int, 0, 4)
+	for _, l := range m.Calibration().Levers() {
+		ids = append(ids, l.ID())
+	}
+	samples := climbSamples()
+	mask := len(samples) - 1
+	var states [4]LeverState
+	var f Frame
+	b.ReportAllocs()
+	b.ResetTimer()
+	sum := 0.0
+	for i := 0; i < b.N; i++ {
+		lever := i & 3
+		x := &samples[(i>>2)&mask]
+		// The levers of a quadrant sit a little apart.
+		var cmd LeverCommand
+		var err error
+		if framed {
+			cmd, err = m.CommandFrame(&f, &states[lever], ids[lever], x.raw+float64(lever)*7, x.c)
+		} else {
+			cmd, err = m.Command(&states[lever], ids[lever], x.raw+float64(lever)*7, x.c)
+		}
+		if err != nil {
+			b.Fatal(err)
+		}
+		sum += cmd.Value
+	}
+	sink = sum
+}

@@ -52,3 +52,26 @@ func ExampleProfile_BleedSet() {
 	// anti-ice changes climb N1 by -0.8 percent
 	// unknown bleed "wing-heat" (the profile has engine-anti-ice, wing-anti-ice, packs-off)
 }
+
+// Raw counts of a two-lever quadrant to engine commands, every frame: one
+// caller-owned state per lever, and one Frame so the levers share the gate
+// targets worked out at the frame's conditions.
+func ExampleModel_CommandFrame() {
+	m, err := thrustmap.LoadModel("demo-epr", "demo-epr") // profile and its built-in calibration
+	if err != nil {
+		log.Fatal(err)
+	}
+	var states [2]thrustmap.LeverState
+	var frame thrustmap.Frame
+	c := thrustmap.Conditions{AltitudeFt: 0, OATC: 15, OnGround: true}
+	for i, raw := range []float64{2705, 1590} { // levers 1 and 2 (wired inverted), both in the climb gate
+		cmd, err := m.CommandFrame(&frame, &states[i], i+1, raw, c)
+		if err != nil {
+			log.Fatal(err)
+		}
+		fmt.Printf("lever %d: TLA %.1f°, gate %s, %s %.3f\n", i+1, cmd.TLADeg, m.GateName(cmd.Gate), cmd.Parameter, cmd.Value)
+	}
+	// Output:
+	// lever 1: TLA 32.0°, gate climb, EPR 1.380
+	// lever 2: TLA 31.9°, gate climb, EPR 1.380
+}

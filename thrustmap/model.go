@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	mathbits "math/bits"
 	"sync/atomic"
 )
 
@@ -26,6 +27,17 @@ type Model struct {
 	anyTLA  bool        // an expression reads tla: gates are re-evaluated at every position
 	always  uint16      // bit i: gate i is active at any conditions (a rating, no when)
 	levers  []leverGeom // per calibrated lever; plus the profile's own at the end
+
+	// chainMax[i] bounds from above the effective target of gate i and of
+	// every gate between it and idle, at any conditions (+Inf where an
+	// expression takes part): a gate whose own target is at least the bound
+	// of the next gate towards idle cannot be raised, and its chain need
+	// not be worked out.
+	chainMax [MaxGates]float64
+	// shareable: the gate targets at one set of conditions are the same for
+	// every lever, so a Frame may carry them from lever to lever (no
+	// expression reads tla, no gate falls back to a lever's last command).
+	shareable bool
 }
 
 // leverGeom is the gate geometry one lever sees: the profile's capture and
@@ -64,6 +76,13 @@ func NewModel(p *Profile, cal *Calibration) (*Model, error) {
 		}
 		m.anyTLA = m.anyTLA || (ge.target != nil && ge.target.usesTLA) || (ge.when != nil && ge.when.usesTLA)
 	}
+	m.boundChains()
+	m.shareable = !m.anyTLA
+	for i, ge := range p.gateExprs {
+		if ge.target != nil && m.ratings[i] == nil {
+			m.shareable = false
+		}
+	}
 	if cal != nil {
 		for _, l := range cal.levers {
 			geom, err := m.geometry(l)
@@ -79,6 +98,42 @@ func NewModel(p *Profile, cal *Calibration) (*Model, error) {
 	}
 	m.levers = append(m.levers, own)
 	return m, nil
+}
+
+// boundChains sets chainMax from the gates' own target bounds, gate by gate
+// away from idle on either side.
+func (m *Model) boundChains() {
+	base := max(m.idle, 0)
+	n := len(m.profile.gates)
+	for i := base; i < n; i++ {
+		m.chainMax[i] = m.ownMax(i)
+		if i > base {
+			m.chainMax[i] = math.Max(m.chainMax[i], m.chainMax[i-1])
+		}
+	}
+	for i := base - 1; i >= 0; i-- {
+		m.chainMax[i] = math.Max(m.ownMax(i), m.chainMax[i+1])
+	}
+}
+
+// ownMax bounds gate i's own target from above at any conditions: its
+// rating's greatest node plus every positive bleed correction, cut to the
+// redline. A gate with an expression gets +Inf: a target expression may
+// give anything, and skipping a `when` would skip the fallback it may flag.
+func (m *Model) ownMax(i int) float64 {
+	r := m.ratings[i]
+	if ge := m.profile.gateExprs[i]; r == nil || ge.target != nil || ge.when != nil {
+		return math.Inf(1)
+	}
+	_, hi := r.table.Bounds()
+	for _, c := range r.corrections {
+		d := c.Delta
+		if c.Grid != nil {
+			_, d = c.Grid.Bounds()
+		}
+		hi += math.Max(d, 0)
+	}
+	return math.Min(hi, m.profile.redline)
 }
 
 // geometry floors the profile's gate zones with lever l's calibration and
@@ -212,19 +267,26 @@ func (s *LeverState) Reset() {
 // allocates nothing unless an expression gate is evaluated (see
 // BenchmarkCommandExpr) or it returns an error.
 func (m *Model) Command(s *LeverState, lever int, raw float64, c Conditions) (LeverCommand, error) {
+	var out LeverCommand
+	err := m.command(s, lever, raw, c, &out)
+	return out, err
+}
+
+// command is Command filling *out, which must be zero (left zero on an error).
+func (m *Model) command(s *LeverState, lever int, raw float64, c Conditions, out *LeverCommand) error {
 	geom := s.geom
 	if s.model != m || geom == nil || geom.id != lever {
 		var err error
 		if geom, err = m.geom(lever); err != nil {
-			return LeverCommand{}, err
+			return err
 		}
 		s.holding = false
 	}
 	if geom.cal == nil {
-		return LeverCommand{}, fmt.Errorf("%w %d has no calibration: use CommandAtTLA", ErrLever, lever)
+		return fmt.Errorf("%w %d has no calibration: use CommandAtTLA", ErrLever, lever)
 	}
 	if math.IsNaN(raw) || math.IsInf(raw, 0) {
-		return LeverCommand{}, fmt.Errorf("%w %d: raw %g is not a finite count", ErrLever, lever, raw)
+		return fmt.Errorf("%w %d: raw %g is not a finite count", ErrLever, lever, raw)
 	}
 	if !s.holding || math.Abs(raw-s.held) > geom.cal.spec.Deadband {
 		s.held, s.holding = raw, true
@@ -233,9 +295,82 @@ func (m *Model) Command(s *LeverState, lever int, raw float64, c Conditions) (Le
 	if raw < geom.cal.spec.RawMin || raw > geom.cal.spec.RawMax {
 		cl |= ClampDevice
 	}
+	if err := m.commandAt(s, geom, raw, tla, cl, c, out); err != nil {
+		*out = LeverCommand{}
+		return err
+	}
+	return nil
+}
+
+// Frame carries the gate targets worked out for one lever to the next
+// levers commanded at the same conditions in the same frame, so a quadrant
+// works them out once, not once per lever. Its zero value is ready; keep one
+// per goroutine and pass it to every lever of every frame: a frame at new
+// conditions starts it afresh.
+type Frame struct {
+	model                                   *Model
+	cond                                    Conditions
+	whenKnown, whenTrue, ownKnown, effKnown uint16
+	gates                                   [MaxGates]gateEval
+}
+
+// CommandFrame is Command for one of several levers commanded at the same
+// conditions c in a frame: the gate targets that earlier levers of frame f
+// worked out are reused, and those this lever works out are added to f. The
+// results are those of Command. Models whose gate targets depend on the
+// lever (an expression reading tla, a gate that may fall back to a lever's
+// last command) share nothing. It allocates nothing.
+func (m *Model) CommandFrame(f *Frame, s *LeverState, lever int, raw float64, c Conditions) (LeverCommand, error) {
+	shared := m.shareable && f.model == m && f.cond == c
+	if shared {
+		s.adopt(m, f)
+	}
 	var out LeverCommand
-	err := m.commandAt(s, geom, raw, tla, cl, c, &out)
+	err := m.command(s, lever, raw, c, &out)
+	if err == nil && m.shareable && s.model == m && s.cond == c && !s.whenFailed {
+		if !shared {
+			// The gates' entries are read only under their mask bits.
+			f.model, f.cond = m, c
+			f.whenKnown, f.whenTrue, f.ownKnown, f.effKnown = 0, 0, 0, 0
+		}
+		f.save(s)
+	}
 	return out, err
+}
+
+// adopt gives s the gate targets f holds that s has not worked out, when s
+// is already set up on m (a fresh state works out its own).
+func (s *LeverState) adopt(m *Model, f *Frame) {
+	if s.model != m || s.geom == nil {
+		return
+	}
+	if s.cond != f.cond {
+		s.invalidate(f.cond)
+	}
+	if s.whenFailed {
+		return
+	}
+	for bits := (f.ownKnown &^ s.ownKnown) | (f.effKnown &^ s.effKnown); bits != 0; bits &= bits - 1 {
+		i := mathbits.TrailingZeros16(bits)
+		s.gates[i] = f.gates[i]
+	}
+	s.ownKnown |= f.ownKnown
+	s.effKnown |= f.effKnown
+	s.whenTrue = s.whenTrue&s.whenKnown | f.whenTrue&f.whenKnown&^s.whenKnown
+	s.whenKnown |= f.whenKnown
+}
+
+// save adds to f the gate targets s worked out that f does not hold; s
+// worked them out at f's conditions with no `when` failing.
+func (f *Frame) save(s *LeverState) {
+	for bits := (s.ownKnown &^ f.ownKnown) | (s.effKnown &^ f.effKnown); bits != 0; bits &= bits - 1 {
+		i := mathbits.TrailingZeros16(bits)
+		f.gates[i] = s.gates[i]
+	}
+	f.ownKnown |= s.ownKnown
+	f.effKnown |= s.effKnown
+	f.whenTrue = f.whenTrue&f.whenKnown | s.whenTrue&s.whenKnown&^f.whenKnown
+	f.whenKnown |= s.whenKnown
 }
 
 // CommandAtTLA is Command from a lever angle instead of raw counts, with the
@@ -429,18 +564,22 @@ func (s *LeverState) effective(m *Model, g int, tla float64) *gateEval {
 	if g < base {
 		step = 1
 	}
-	prev := -1
-	for i := g + step; i >= 0 && (step < 0 && i >= base || step > 0 && i <= base); i += step {
-		if m.always&(1<<i) != 0 || s.active(m, i, tla) {
-			prev = i
-			break
-		}
-	}
 	s.own(m, g, tla)
 	e.eff, e.flags, e.clamp = e.own, e.ownFlags, e.ownClamp
-	if prev >= 0 {
-		if p := s.effective(m, prev, tla); p.eff > e.own {
-			e.eff, e.flags, e.clamp = p.eff, p.flags|Raised, p.clamp
+	// Nothing between g and idle can raise an own target at or above their
+	// bound: then the chain is not worked out at all.
+	if next := g + step; g != base && next >= 0 && next < len(m.profile.gates) && e.own < m.chainMax[next] {
+		prev := -1
+		for i := next; i >= 0 && (step < 0 && i >= base || step > 0 && i <= base); i += step {
+			if m.always&(1<<i) != 0 || s.active(m, i, tla) {
+				prev = i
+				break
+			}
+		}
+		if prev >= 0 {
+			if p := s.effective(m, prev, tla); p.eff > e.own {
+				e.eff, e.flags, e.clamp = p.eff, p.flags|Raised, p.clamp
+			}
 		}
 	}
 	s.effKnown |= 1 << g

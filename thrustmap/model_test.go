@@ -541,3 +541,60 @@ func TestLeverBeyondEndStops(t *testing.T) {
 		t.Errorf("TLA 70: %g %v, want 55 and a lever clamp", cmd.TLADeg, cmd.Clamped.Names())
 	}
 }
+
+// TestCommandFrameMatchesCommand: levers commanded through a shared Frame
+// give exactly what each gives through Command alone, on every demo (their
+// expressions, `when` gates and raise chains) and on models that cannot
+// share, over frames of random positions and conditions; and a frame
+// allocates nothing.
+func TestCommandFrameMatchesCommand(t *testing.T) {
+	rng := rand.New(rand.NewPCG(21, 22))
+	for _, name := range EmbeddedProfiles() {
+		m := demoModel(t, name)
+		levers := m.Calibration().Levers()
+		alone := make([]LeverState, len(levers))
+		framed := make([]LeverState, len(levers))
+		for frame := range 3000 {
+			oat := -30 + 60*rng.Float64()
+			c := Conditions{AltitudeFt: 12000 * rng.Float64(), OATC: oat, Mach: 0.5 * rng.Float64(),
+				Bleeds: Bleeds(rng.IntN(4)), OnGround: rng.IntN(2) == 0, AssumedSet: rng.IntN(2) == 0, AssumedC: oat + 40*rng.Float64()}
+			if frame%7 == 0 && frame > 0 {
+				c.OATC += 1e-9 // a frame at new conditions that differ in the last bits
+			}
+			var f Frame
+			for i, l := range levers {
+				spec := l.Spec()
+				raw := spec.RawMin + (spec.RawMax-spec.RawMin)*rng.Float64()
+				want, errA := m.Command(&alone[i], spec.ID, raw, c)
+				got, errB := m.CommandFrame(&f, &framed[i], spec.ID, raw, c)
+				if (errA == nil) != (errB == nil) || got != want {
+					t.Fatalf("%s frame %d lever %d raw %g at %+v:\nframe %+v %v\nalone %+v %v", name, frame, spec.ID, raw, c, got, errB, want, errA)
+				}
+			}
+			if m.shareable && f.ownKnown == 0 && errorsFree(m, c) {
+				t.Fatalf("%s frame %d: the frame carried nothing to the next lever", name, frame)
+			}
+		}
+		t.Logf("%s: gate targets shared between levers: %v", name, m.shareable)
+		var f Frame
+		var states [2]LeverState
+		ids := [2]int{levers[0].ID(), levers[min(1, len(levers)-1)].ID()}
+		c := Conditions{AltitudeFt: 1000, OATC: 20, OnGround: true, AssumedSet: true, AssumedC: 45}
+		if n := testing.AllocsPerRun(100, func() {
+			f = Frame{}
+			for i, id := range ids {
+				m.CommandFrame(&f, &states[i], id, 2000, c)
+			}
+		}); n != 0 {
+			t.Errorf("%s: %g allocations per frame", name, n)
+		}
+	}
+}
+
+// errorsFree reports whether m commands at c without a `when` failing, the
+// case in which a frame carries gate targets.
+func errorsFree(m *Model, c Conditions) bool {
+	var s LeverState
+	_, err := m.CommandAtTLA(&s, NoLever, 0, c)
+	return err == nil && !s.whenFailed
+}

@@ -251,8 +251,10 @@ func (h *handle) commandLevers(levers, raws []int32, in conditions, put func(i i
 	if err != nil {
 		return h.fail(err)
 	}
+	// One frame: the gate targets the first lever works out serve the others.
+	var frame thrustmap.Frame
 	for i, id := range levers {
-		cmd, err := h.run(slots[i], int(id), int(raws[i]), c)
+		cmd, err := h.runFrame(&frame, slots[i], int(id), int(raws[i]), c)
 		if err != nil {
 			return h.fail(fmt.Errorf("thrustmap_command_levers: levers[%d] = %d, raw %d: %w", i, id, raws[i], err))
 		}
@@ -265,6 +267,11 @@ func (h *handle) commandLevers(levers, raws []int32, in conditions, put func(i i
 // lever's state, which it may have left half updated, and goes on up to the
 // export's recover.
 func (h *handle) run(l *leverSlot, lever, raw int, c thrustmap.Conditions) (thrustmap.LeverCommand, error) {
+	return h.runFrame(nil, l, lever, raw, c)
+}
+
+// runFrame is run for one lever of a frame (nil: a lone lever).
+func (h *handle) runFrame(f *thrustmap.Frame, l *leverSlot, lever, raw int, c thrustmap.Conditions) (cmd thrustmap.LeverCommand, err error) {
 	l.mu.Lock()
 	done := false
 	defer func() {
@@ -273,7 +280,11 @@ func (h *handle) run(l *leverSlot, lever, raw int, c thrustmap.Conditions) (thru
 		}
 		l.mu.Unlock()
 	}()
-	cmd, err := h.model.Command(&l.state, lever, float64(raw), c)
+	if f != nil {
+		cmd, err = h.model.CommandFrame(f, &l.state, lever, float64(raw), c)
+	} else {
+		cmd, err = h.model.Command(&l.state, lever, float64(raw), c)
+	}
 	done = true
 	return cmd, err
 }

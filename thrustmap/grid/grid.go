@@ -203,6 +203,19 @@ func (g *Grid) Range(a Axis) (lo, hi float64) {
 	return xs[0], xs[len(xs)-1]
 }
 
+// Bounds returns the least and the greatest value at the grid's nodes.
+// Every value At returns lies within them: multilinear interpolation is a
+// convex combination of nodes, and the monotone (Fritsch–Butland)
+// interpolant stays between the two nodes of each segment along each axis,
+// applied axis by axis.
+func (g *Grid) Bounds() (lo, hi float64) {
+	lo, hi = math.Inf(1), math.Inf(-1)
+	for _, v := range g.values {
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
+	return lo, hi
+}
+
 // At interpolates the grid at q (altitude, temperature, Mach; coordinates of
 // absent axes are ignored). Coordinates outside an axis are clamped to its
 // edge and reported in the returned set. q must be finite: the caller checks.

@@ -213,6 +213,38 @@ func TestNeverNaN(t *testing.T) {
 	}
 }
 
+// TestBoundsHoldEverywhere: Bounds are the least and greatest node (worked
+// by hand for the small grid below: 88 and 104), and no value At returns,
+// on three axes, in either method, at random points in and around the grid,
+// lies outside them — the property the lever hot path relies on to skip the
+// raise chain when a gate's own target is above every gate below it.
+func TestBoundsHoldEverywhere(t *testing.T) {
+	alt := []float64{0, 5000, 10000}
+	temp := []float64{-40, 0, 15, 30}
+	mach := []float64{0, 0.4}
+	rng := rand.New(rand.NewPCG(5, 6))
+	vals := make([]float64, len(alt)*len(temp)*len(mach))
+	for i := range vals {
+		vals[i] = 88 + 16*rng.Float64()
+	}
+	vals[3], vals[17] = 88, 104
+	for _, m := range []Method{Linear, Monotone} {
+		g, err := New([NumAxes][]float64{alt, temp, mach}, vals, m)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if lo, hi := g.Bounds(); lo != 88 || hi != 104 {
+			t.Fatalf("%v: Bounds = %g, %g, want 88, 104", m, lo, hi)
+		}
+		for range 20000 {
+			q := [NumAxes]float64{-2000 + 14000*rng.Float64(), -60 + 110*rng.Float64(), -0.1 + 0.6*rng.Float64()}
+			if v, _ := g.At(q); v < 88 || v > 104 {
+				t.Fatalf("%v At(%v) = %g, outside the node range 88 to 104", m, q, v)
+			}
+		}
+	}
+}
+
 func BenchmarkAtLinear12x12(b *testing.B) {
 	g := bench12x12(b, Linear)
 	rng := rand.New(rand.NewPCG(3, 4))
