@@ -336,16 +336,20 @@ func (v *recordView) refresh(d *input.Device) {
 	}
 	line(fmt.Sprintf("lever  %-8s  %8s  %-13s  rests", "axis", "raw", "travel"))
 	for _, id := range v.levers {
+		axis := v.axis[id]
+		if axis == "" {
+			axis = "-" // the lines name the lever
+		}
 		p, ok := v.an.Progress(id)
 		if !ok {
-			line(fmt.Sprintf("%-5d  %-8s  %8s  waiting for a reading", id, v.axis[id], "-"))
+			line(fmt.Sprintf("%-5d  %-8s  %8s  waiting for a reading", id, axis, "-"))
 			continue
 		}
 		state := ""
 		if p.Resting {
 			state = "  resting"
 		}
-		line(fmt.Sprintf("%-5d  %-8s  %8g  %-13s  %d%s: %s%s", id, v.axis[id], p.Raw,
+		line(fmt.Sprintf("%-5d  %-8s  %8g  %-13s  %d%s: %s%s", id, axis, p.Raw,
 			fmt.Sprintf("%g–%g", p.RawMinSeen, p.RawMaxSeen), len(p.Rests), v.expected(), formatRests(p.Rests), state))
 	}
 	io.WriteString(v.w, b.String())

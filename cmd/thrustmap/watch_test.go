@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"github.com/thrustmap/thrustmap/thrustmap"
+	"github.com/thrustmap/thrustmap/thrustmap/input"
 )
 
 // inputEvent is struct input_event on 64-bit Linux
@@ -431,5 +432,27 @@ func TestWatchCSVDevice(t *testing.T) {
 	lines := strings.Split(strings.TrimSpace(stdout.String()), "\n")
 	if len(lines) != 3 || !strings.HasPrefix(lines[2], `{"t_ms":500,"lever":1,"raw":2588,"tla_deg":27,"gate":"climb"`) {
 		t.Errorf("JSON lines:\n%s", stdout.String())
+	}
+}
+
+// TestWatchJoy: a game controller (a fake in place of winmm.dll) read as
+// joy:0, the calibration's levers on X and Y by default; the warning about
+// the driver's calibration is shown.
+func TestWatchJoy(t *testing.T) {
+	useSystem(t, &input.System{Controllers: &fakeJoy{script: [][input.JoyAxes]uint32{
+		{},           // the poll that finds it connected
+		{1218, 3021}, // lever 1 at idle, lever 2 at idle
+		{2588, 3021}, // lever 1 to climb
+	}}, PollInterval: time.Millisecond})
+	args := append([]string{"watch", "--device", "joy:0", "--once=3"}, demoArgs...)
+	stdout, stderr, code := startWatch(args...)
+	if c := waitExit(t, code, stderr); c != 0 {
+		t.Fatalf("exit %d; stderr:\n%s", c, stderr.String())
+	}
+	checkRows(t, stdout.String(), demoRows)
+	for _, want := range []string{"joy:0 (joy, \"Invented Quadrant\"): lever 1 ← X, lever 2 ← Y", "clear that calibration there first"} {
+		if !strings.Contains(stderr.String(), want) {
+			t.Errorf("stderr does not say %q:\n%s", want, stderr.String())
+		}
 	}
 }
