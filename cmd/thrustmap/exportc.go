@@ -20,9 +20,12 @@ func newExportCCmd() *cobra.Command {
 corrections, redline, reduced takeoff by the assumed-temperature method, gates
 (with their expressions) and, with -c, the lever calibrations: the same
 answers as the Go library, for simulator plugins that cannot load a Go
-library (a process holds only one Go runtime). Define <PREFIX>HEADER_ONLY
-before including it to get the declarations alone. Expressions outside the
-subset the library evaluates natively are refused, naming the gate.
+library (a process holds only one Go runtime). Its interface (version 2)
+has the C library's types and flag bits where the two overlap: 64-bit
+bleeds, <prefix>bleed_bit to find a bleed by name, <prefix>target_detail.
+Define <PREFIX>HEADER_ONLY before including it to get the declarations
+alone. Expressions outside the subset the library evaluates natively are
+refused, naming the gate.
 
 ` + safetyNote,
 		Args: cobra.NoArgs,

@@ -877,6 +877,12 @@ func (g *cGen) header() {
 	w("and <string.h> and allocates nothing). To use it from another file, define")
 	w("%sHEADER_ONLY and #include it there for the declarations. One", g.upper)
 	w("%slever_state per lever per thread, zeroed before first use.", g.prefix)
+	w("")
+	w("Interface version 2 (%sAPI_VERSION): the 64-bit bleeds, the bleed", g.upper)
+	w("look-up by name (%sbleed_bit), %starget_detail and the flag bits are", g.prefix, g.prefix)
+	w("those of thrustmap's C library (thrustmap.h) under this prefix. The code")
+	w("after the tables is thrustmap's C runtime (thrustmap/export/cruntime in")
+	w("its source), copied in with the prefix applied.")
 	g.b.WriteString(" */\n")
 }
 
@@ -925,6 +931,7 @@ func (g *cGen) features() {
 	flag := func(name string, on bool) { g.code("#define ENGINE__%s %d\n", name, b2i(on)) }
 	g.code("#define ENGINE__FT_TO_M (%s)\n#define ENGINE__KELVIN (%s)\n#define ENGINE__MIN_ALT_FT (%s)\n#define ENGINE__MAX_ALT_FT (%s)\n",
 		cNum(atmos.FeetToMeters), cNum(atmos.KelvinOffset), cNum(atmos.MinAltitudeFt), cNum(atmos.MaxAltitudeFt))
+	g.code("#define ENGINE__BLEED_MASK ((uint64_t)0x%xu) /* the profile's bleeds */\n", uint64(math.MaxUint64)>>(64-len(p.Bleeds())))
 	flag("MONOTONE", g.anyMonotone)
 	red, hasRed := p.Redline()
 	flag("REDLINE", hasRed)

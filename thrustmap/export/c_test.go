@@ -61,7 +61,8 @@ func writeC(t *testing.T, m *thrustmap.Model, o COptions) []byte {
 // profile with its built-in calibration, the demo without one, and the
 // expression test profile with a variant (expressions reading tla, so gate
 // values are worked out at every position; reverse allowed in the air; the
-// N1 reduction by method "table"; a derate whose reduction is not checked).
+// N1 reduction by method "table"; a derate whose reduction is not checked),
+// and a profile with 64 bleeds.
 func cModels(t *testing.T) map[string]*thrustmap.Model {
 	t.Helper()
 	out := map[string]*thrustmap.Model{}
@@ -103,6 +104,9 @@ func cModels(t *testing.T) map[string]*thrustmap.Model {
 		t.Fatal(err)
 	}
 	if out["exprs-tla"], err = thrustmap.LoadModel(path, cal); err != nil {
+		t.Fatal(err)
+	}
+	if out["bleeds64"], err = thrustmap.LoadModel(filepath.Join("testdata", "c", "bleeds64.toml"), ""); err != nil {
 		t.Fatal(err)
 	}
 	// Bare profiles: no bleeds, corrections, redline, idle gate (so no
@@ -231,7 +235,7 @@ var cSituations = []string{
 	"command raised", "command limited", "command interlock", "command fallback",
 	"clamped altitude", "clamped temperature", "clamped mach", "clamped raw", "clamped device", "clamped lever",
 	"hysteresis band", "between gates", "in a capture zone", "reverse", "deadband held",
-	"assumed at the corner", "state shared across geometries",
+	"assumed at the corner", "state shared across geometries", "bleed bit beyond the profile's",
 	fmt.Sprintf("command error %d", cErrCond), fmt.Sprintf("command error %d", cErrLever), fmt.Sprintf("command error %d", cErrInput),
 	fmt.Sprintf("command error %d", cErrNoGate),
 }
@@ -289,16 +293,43 @@ int main(int argc, char **argv)
             continue;
         switch (t[0][0]) {
         case 'T': {
-            engine_result r;
+            engine_target_result r;
+            int rc;
+            memset(&r, 0x5a, sizeof r); /* written only on success */
+            conditions(t + 2, &c);
+            rc = engine_target_detail(atoi(t[1]), &c, &r);
+            if (rc != 0)
+                printf("%d %d\n", rc, r.reduction_evaluated);
+            else
+                printf("%d %a %u %d %d %u %a %a %a %a\n", rc, r.value, (unsigned)r.flags, r.reduction_evaluated,
+                       r.reduction_applied, (unsigned)r.reasons, r.assumed_c, r.effective_c, r.value_full,
+                       r.thrust_reduction_pct);
+            break;
+        }
+        case 'V': {
+            double v = -1;
             int rc;
             conditions(t + 2, &c);
-            rc = engine_target(atoi(t[1]), &c, &r);
-            if (rc != 0)
-                printf("%d\n", rc);
-            else
-                printf("%d %a %u %u %d %d %u %a %a %a %d %a\n", rc, r.value, (unsigned)r.flags, (unsigned)r.clamped,
-                       r.evaluated, r.applied, (unsigned)r.reasons, r.assumed_c, r.effective_c, r.value_full,
-                       r.thrust_checked, r.thrust_reduction_pct);
+            rc = engine_target(atoi(t[1]), &c, &v);
+            printf("%d %a\n", rc, v);
+            break;
+        }
+        case 'Z': { /* NULL pointers */
+            engine_target_result r;
+            double v;
+            conditions(t + 1, &c);
+            printf("%d %d %d %d %d %d %d %d", engine_target(0, NULL, &v), engine_target(0, &c, NULL),
+                   engine_target_detail(0, NULL, &r), engine_target_detail(0, &c, NULL), engine_bleed_bit(NULL),
+                   engine_command_tla(ENGINE_NO_LEVER, NULL, 0, &c, &o), engine_command_tla(ENGINE_NO_LEVER, &states[0], 0, NULL, &o),
+                   engine_command_tla(ENGINE_NO_LEVER, &states[0], 0, &c, NULL));
+            engine_lever_reset(NULL);
+#if ENGINE_NUM_LEVERS > 0
+            printf(" %d %d %d %d %d", engine_command_raw(engine_lever_id(0), NULL, 0, &c, &o),
+                       engine_command_raw(engine_lever_id(0), &states[0], 0, NULL, &o),
+                       engine_command_raw(engine_lever_id(0), &states[0], 0, &c, NULL),
+                   engine_raw_to_tla(engine_lever_id(0), 0, NULL, NULL), engine_tla_to_raw(engine_lever_id(0), 0, NULL, NULL));
+#endif
+            printf("\n");
             break;
         }
         case 'A':
@@ -348,13 +379,17 @@ int main(int argc, char **argv)
             printf("%s\n", engine_rating_name(atoi(t[1])));
             break;
         case 'B':
-            printf("%d\n", engine_bleed_index(t[1]));
+            printf("%d\n", engine_bleed_bit(t[1]));
+            break;
+        case 'b':
+            printf("%s\n", engine_bleed_name(atoi(t[1])));
             break;
         case 'G':
             printf("%s\n", engine_gate_name(atoi(t[1])));
             break;
         case 'P':
-            printf("%s %s %d %d %d\n", ENGINE_PARAMETER, ENGINE_UNIT, ENGINE_NUM_RATINGS, ENGINE_NUM_GATES, ENGINE_NUM_BLEEDS);
+            printf("%s %s %d %d %d %d\n", ENGINE_PARAMETER, ENGINE_UNIT, ENGINE_NUM_RATINGS, ENGINE_NUM_GATES, ENGINE_NUM_BLEEDS,
+                   ENGINE_API_VERSION);
             break;
         default:
             printf("?\n");
@@ -373,6 +408,7 @@ const (
 	cErrLever   = -3
 	cErrInput   = -4
 	cErrNoGate  = -5
+	cErrBleed   = -6
 	cNumStates  = 8
 	cTolerance  = 1e-9
 	cHexFloat   = 'x'
@@ -520,7 +556,7 @@ func (v *cVectors) varied(c thrustmap.Conditions) thrustmap.Conditions {
 
 func (v *cVectors) generate() {
 	p := v.p
-	v.add("P", fmt.Sprintf("%s %s %d %d %d", p.Parameter(), p.Parameter().Unit(), len(p.Ratings()), len(p.Gates()), len(p.Bleeds())))
+	v.add("P", fmt.Sprintf("%s %s %d %d %d 2", p.Parameter(), p.Parameter().Unit(), len(p.Ratings()), len(p.Gates()), len(p.Bleeds())))
 	for i, r := range p.Ratings() {
 		v.add("N "+r.Name(), i)
 		v.add(fmt.Sprintf("S %d", i), r.Name())
@@ -529,8 +565,11 @@ func (v *cVectors) generate() {
 	v.add(fmt.Sprintf("S %d", len(p.Ratings())), "")
 	for i, b := range p.Bleeds() {
 		v.add("B "+b, i)
+		v.add(fmt.Sprintf("b %d", i), b)
 	}
-	v.add("B no-such-bleed", -1)
+	v.add("B no-such-bleed", cErrBleed)
+	v.add("b -1", "")
+	v.add(fmt.Sprintf("b %d", len(p.Bleeds())), "")
 	for i := -1; i <= len(p.Gates()); i++ {
 		v.add(fmt.Sprintf("G %d", i), v.m.GateName(i))
 	}
@@ -557,29 +596,99 @@ func (v *cVectors) targets() {
 					v.seen["assumed at the corner"]++
 				}
 			}
-			res, err := v.p.RatingTarget(r, c)
-			op := fmt.Sprintf("T %d %s", i, condText(c))
-			if err != nil {
-				if !errors.Is(err, thrustmap.ErrConditions) {
-					v.t.Fatalf("%s: %v", op, err)
-				}
-				v.add(op, cErrCond)
-				continue
-			}
-			red := res.Reduction
-			for _, n := range red.Reasons.Names() {
-				v.seen["reason "+n]++
-			}
-			for _, n := range res.Flags.Names() {
-				v.seen["target "+n]++
-			}
-			v.add(op, cOK, res.Value, uint8(res.Flags), uint8(res.Clamped), b01(red.Evaluated), b01(red.Applied),
-				uint8(red.Reasons), red.AssumedC, red.EffectiveC, red.ValueFull, b01(red.ThrustChecked), red.ThrustReductionPct)
+			v.target(i, r, c)
 		}
 	}
 	for _, i := range []int{-1, len(ratings), 99} {
-		v.add(fmt.Sprintf("T %d %s", i, condText(thrustmap.Conditions{})), cErrRating)
+		v.add(fmt.Sprintf("T %d %s", i, condText(thrustmap.Conditions{})), cErrRating, cUntouched)
+		v.add(fmt.Sprintf("V %d %s", i, condText(thrustmap.Conditions{})), cErrRating, -1.0)
 	}
+	// A bleed bit the profile does not declare is refused, as the C library
+	// refuses it (the Go library ignores it).
+	if n := len(v.p.Bleeds()); n < thrustmap.MaxBleeds && len(ratings) > 0 {
+		c := thrustmap.Conditions{AltitudeFt: 1000, OATC: 15, Mach: 0.2, Bleeds: 1 << uint(n)}
+		v.add(fmt.Sprintf("T 0 %s", condText(c)), cErrCond, cUntouched)
+		v.add(fmt.Sprintf("V 0 %s", condText(c)), cErrCond, -1.0)
+		v.add(fmt.Sprintf("A %d 3 0x0p+00 %s", thrustmap.NoLever, condText(c)), cErrCond)
+		c.Bleeds = 1 << 63
+		v.add(fmt.Sprintf("T 0 %s", condText(c)), cErrCond, cUntouched)
+		v.seen["bleed bit beyond the profile's"]++
+	}
+	// NULL pointers: ENGINE_ERR_INPUT from every function that takes one.
+	nulls := strings.Repeat(fmt.Sprintf(" %d", cErrInput), 8)
+	if v.m.Calibration() != nil {
+		nulls += strings.Repeat(fmt.Sprintf(" %d", cErrInput), 5)
+	}
+	v.add("Z "+condText(thrustmap.Conditions{AltitudeFt: 1000, OATC: 15}), strings.TrimPrefix(nulls, " "))
+}
+
+// cUntouched is what the driver prints for a target result's
+// reduction_evaluated when the call left the result as it was (bytes 0x5a).
+const cUntouched = 0x5a5a5a5a
+
+// target asks rating i for its target at c with engine_target_detail and
+// engine_target, expecting what thrustmap_target_detail in the C library
+// gives for the Go library's answer: NaN for what the assumed-temperature
+// method did not work out, the full value equal to the value when it did
+// not run.
+func (v *cVectors) target(i int, r *thrustmap.Rating, c thrustmap.Conditions) {
+	res, err := v.p.RatingTarget(r, c)
+	op := fmt.Sprintf("T %d %s", i, condText(c))
+	vop := fmt.Sprintf("V %d %s", i, condText(c))
+	if err != nil {
+		if !errors.Is(err, thrustmap.ErrConditions) {
+			v.t.Fatalf("%s: %v", op, err)
+		}
+		v.add(op, cErrCond, cUntouched)
+		v.add(vop, cErrCond, -1.0)
+		return
+	}
+	red := res.Reduction
+	for _, n := range red.Reasons.Names() {
+		v.seen["reason "+n]++
+	}
+	for _, n := range res.Flags.Names() {
+		v.seen["target "+n]++
+	}
+	nan := math.NaN()
+	assumed, effective, full, pct := nan, nan, res.Value, nan
+	if red.Evaluated {
+		assumed, effective, full = red.AssumedC, red.EffectiveC, red.ValueFull
+		if red.ThrustChecked {
+			pct = red.ThrustReductionPct
+		}
+	}
+	v.add(op, cOK, res.Value, cFlags(res.Flags, res.Clamped), b01(red.Evaluated), b01(red.Applied),
+		uint8(red.Reasons), assumed, effective, full, pct)
+	v.add(vop, cOK, res.Value)
+}
+
+// cClamped are the generated C's ENGINE_CLAMPED_* bits alone.
+func cClamped(cl thrustmap.Clamped) uint32 { return cFlags(0, cl) &^ 1 }
+
+// cFlags are the generated C's flag bits for a result's flags and clamped
+// inputs: those of the C library's header (cmd/libthrustmap/thrustmap.h),
+// written out here: ENGINE_FLAG_CLAMPED 1<<0, _RAISED 1<<1, _LIMITED 1<<2,
+// _INTERLOCK 1<<3, _FALLBACK 1<<4; ENGINE_CLAMPED_ALTITUDE 1<<8,
+// _TEMPERATURE 1<<9, _MACH 1<<10, _RAW 1<<11, _DEVICE 1<<12, _LEVER 1<<13.
+func cFlags(f thrustmap.Flags, cl thrustmap.Clamped) uint32 {
+	var out uint32
+	for _, b := range []struct {
+		set bool
+		bit uint32
+	}{
+		{cl != 0, 1 << 0},
+		{f&thrustmap.Raised != 0, 1 << 1}, {f&thrustmap.Limited != 0, 1 << 2},
+		{f&thrustmap.Interlock != 0, 1 << 3}, {f&thrustmap.Fallback != 0, 1 << 4},
+		{cl&thrustmap.ClampAltitude != 0, 1 << 8}, {cl&thrustmap.ClampTemperature != 0, 1 << 9},
+		{cl&thrustmap.ClampMach != 0, 1 << 10}, {cl&thrustmap.ClampRaw != 0, 1 << 11},
+		{cl&thrustmap.ClampDevice != 0, 1 << 12}, {cl&thrustmap.ClampLever != 0, 1 << 13},
+	} {
+		if b.set {
+			out |= b.bit
+		}
+	}
+	return out
 }
 
 // mappings maps raw counts to TLA and back on every calibrated lever.
@@ -597,11 +706,11 @@ func (v *cVectors) mappings() {
 				raw = math.Round(raw)
 			}
 			tla, cl := l.TLA(raw)
-			v.add(fmt.Sprintf("F %d %s", l.ID(), hexf(raw)), cOK, tla, uint8(cl))
+			v.add(fmt.Sprintf("F %d %s", l.ID(), hexf(raw)), cOK, tla, cClamped(cl))
 		}
 		for _, pt := range s.Points {
 			tla, cl := l.TLA(pt[0])
-			v.add(fmt.Sprintf("F %d %s", l.ID(), hexf(pt[0])), cOK, tla, uint8(cl))
+			v.add(fmt.Sprintf("F %d %s", l.ID(), hexf(pt[0])), cOK, tla, cClamped(cl))
 			raw, rc := l.Raw(pt[1])
 			v.add(fmt.Sprintf("I %d %s", l.ID(), hexf(pt[1])), cOK, raw, b01(rc))
 		}
@@ -842,7 +951,8 @@ func (v *cVectors) command(lever int, raw bool, state int, x float64, c thrustma
 	if raw {
 		v.lastTLA[state], v.lastRaw[state] = out.TLADeg, x
 	}
-	v.add(op, cOK, out.TLADeg, out.Value, out.Gate, out.Lower, out.Upper, out.Fraction, b01(out.Reverse), uint8(out.Flags), uint8(out.Clamped))
+	v.add(op, cOK, out.TLADeg, out.Value, out.Gate, out.Lower, out.Upper, out.Fraction, b01(out.Reverse),
+		cFlags(out.Flags, out.Clamped), cClamped(out.Clamped))
 }
 
 // compare checks the driver's answers against the library's: integers and
@@ -1041,15 +1151,15 @@ int main(void)
 {
     twin_conditions c = {1000, 15, 0.2, 0, 1, 0, 0};
     Testconditions d = {1000, 15, 0.2, 0, 1, 0, 0};
-    twin_result r;
-    Testresult s;
+    twin_target_result r;
+    double s;
     twin_lever_state st = {0};
     twin_command cmd;
-    if (twin_target(twin_rating_index("takeoff"), &c, &r) != TWIN_OK || Testtarget(Testrating_index("takeoff"), &d, &s) != TESTOK)
+    if (twin_target_detail(twin_rating_index("takeoff"), &c, &r) != TWIN_OK || Testtarget(Testrating_index("takeoff"), &d, &s) != TESTOK)
         return 1;
     if (twin_command_raw(1, &st, 2000, &c, &cmd) != TWIN_OK)
         return 1;
-    printf("%.3f %.3f %s\n", r.value, s.value, twin_gate_name(cmd.gate));
+    printf("%.3f %.3f %s\n", r.value, s, twin_gate_name(cmd.gate));
     return 0;
 }
 `

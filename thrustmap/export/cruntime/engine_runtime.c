@@ -193,10 +193,10 @@ static double engine__grid_at(const engine__grid *g, double q0, double q1, doubl
         double x = q[a];
         if (x < xs[0]) {
             x = xs[0];
-            cl |= 1u << a;
+            cl |= ENGINE_CLAMPED_ALTITUDE << a;
         } else if (x > xs[last]) {
             x = xs[last];
-            cl |= 1u << a;
+            cl |= ENGINE_CLAMPED_ALTITUDE << a;
         }
         i = engine__segment(xs, g->len[a], x);
         seg[a] = i;
@@ -248,6 +248,8 @@ static int engine__check(const engine_conditions *c)
     if (c->mach < 0 || c->mach > 5)
         return ENGINE_ERR_CONDITIONS;
     if (c->oat_c <= -ENGINE__KELVIN || (c->assumed_set && c->assumed_c <= -ENGINE__KELVIN))
+        return ENGINE_ERR_CONDITIONS;
+    if ((c->bleeds & ~ENGINE__BLEED_MASK) != 0) /* a bleed the profile does not declare, as the C library refuses */
         return ENGINE_ERR_CONDITIONS;
     return ENGINE_OK;
 }
@@ -426,7 +428,7 @@ static double engine__min_builtin(double x, double y)
 
 /* Rule 1 at assumed temperature ta: no reduction at or below the OAT, nor at
    or below the corner; records the reason and returns 1 when it acts. */
-static int engine__full_rating(double ta, double oat, double corner, int has_corner, engine_result *res)
+static int engine__full_rating(double ta, double oat, double corner, int has_corner, engine_target_result *res)
 {
     if (ta <= oat + ENGINE__TEMP_TOL) {
         res->reasons |= ENGINE_REASON_TA_NOT_ABOVE_OAT;
@@ -441,15 +443,17 @@ static int engine__full_rating(double ta, double oat, double corner, int has_cor
 
 /* The assumed-temperature method (FAA AC 25-13), rule by rule: the table
    value to use before bleed corrections; full is the value at the OAT. */
-static double engine__reduce(const engine__rating *r, const engine_conditions *c, double isa, double full, engine_result *res)
+static double engine__reduce(const engine__rating *r, const engine_conditions *c, double isa, double full,
+                             engine_target_result *res, uint32_t *clamped)
 {
     double alt = c->alt_ft, oat = c->oat_c, mach = c->mach, ta = c->assumed_c, corner = 0, v;
     uint32_t cl = 0;
     int has_corner = engine__corner(r, alt, isa, &corner);
-    res->evaluated = 1;
+    res->reduction_evaluated = 1;
     res->assumed_c = c->assumed_c;
     res->effective_c = oat;
-    res->thrust_checked = r->thrust >= 0;
+    if (r->thrust >= 0)
+        res->thrust_reduction_pct = 0; /* checked; NaN stays for a rating without a thrust grid */
     /* Rule 1: no reduction at or below the OAT, nor at or below the corner. */
     if (engine__full_rating(ta, oat, corner, has_corner, res))
         return full;
@@ -476,9 +480,9 @@ static double engine__reduce(const engine__rating *r, const engine_conditions *c
     }
     /* Rule 4: the value at the effective temperature, never above full. */
     res->effective_c = ta;
-    res->applied = 1;
+    res->reduction_applied = 1;
     v = engine__base(r, alt, ta, mach, isa, &cl);
-    res->clamped |= cl;
+    *clamped |= cl;
 #if ENGINE__CORRECTED
     /* Same corrected speed N1/sqrt(theta) as at Ta. */
     v *= sqrt((oat + ENGINE__KELVIN) / (ta + ENGINE__KELVIN));
@@ -487,26 +491,32 @@ static double engine__reduce(const engine__rating *r, const engine_conditions *c
 }
 #endif /* ENGINE__ASSUMED */
 
-static int engine__target_r(const engine__rating *r, const engine_conditions *c, engine_result *res)
+/* The target of rating r at c into *res; ENGINE_ERR_CONDITIONS leaves *res
+   part written. */
+static int engine__target_r(const engine__rating *r, const engine_conditions *c, engine_target_result *res)
 {
     double isa = NAN, full, value, corr;
     uint32_t cl = 0, f = 0;
-    memset(res, 0, sizeof *res);
     if (engine__check(c) != ENGINE_OK)
         return ENGINE_ERR_CONDITIONS;
+    res->reduction_evaluated = res->reduction_applied = 0;
+    res->reasons = 0;
+    res->assumed_c = res->effective_c = res->thrust_reduction_pct = NAN;
     if (r->needs_isa || c->assumed_set)
         isa = engine__isa_c(c->alt_ft);
     full = engine__base(r, c->alt_ft, c->oat_c, c->mach, isa, &cl);
-    res->clamped = cl;
     value = full;
 #if ENGINE__ASSUMED
     if (c->assumed_set && r->assumed)
-        value = engine__reduce(r, c, isa, full, res);
+        value = engine__reduce(r, c, isa, full, res, &cl);
 #endif
-    corr = engine__bleed_correction(r, c, isa, &res->clamped);
+    corr = engine__bleed_correction(r, c, isa, &cl);
     res->value = engine__limit(value + corr, &res->flags);
-    if (res->evaluated)
+    res->value_full = res->value;
+    if (res->reduction_evaluated)
         res->value_full = engine__limit(full + corr, &f);
+    if (cl != 0)
+        res->flags |= ENGINE_FLAG_CLAMPED | cl;
     return ENGINE_OK;
 }
 
@@ -604,7 +614,7 @@ static double engine__e_rating_at(engine__ctx *x, int r, double alt, double oat)
 /* assumed("name"): the target with the reduction at the assumed temperature. */
 static double engine__e_assumed(engine__ctx *x, int r)
 {
-    engine_result res;
+    engine_target_result res;
     if (engine__target_r(&engine__ratings[r], &x->cond, &res) != ENGINE_OK)
         return engine__fail(x);
     return res.value;
@@ -812,10 +822,10 @@ static int engine__command_at(engine_lever_state *s, int gi, double tla, uint32_
     }
     if (tla < ENGINE_TLA_MIN_DEG) {
         tla = ENGINE_TLA_MIN_DEG;
-        cl |= ENGINE_CLAMP_LEVER;
+        cl |= ENGINE_CLAMPED_LEVER;
     } else if (tla > ENGINE_TLA_MAX_DEG) {
         tla = ENGINE_TLA_MAX_DEG;
-        cl |= ENGINE_CLAMP_LEVER;
+        cl |= ENGINE_CLAMPED_LEVER;
     }
     out->tla_deg = tla;
     out->clamped = cl;
@@ -893,6 +903,8 @@ static int engine__command_at(engine_lever_state *s, int gi, double tla, uint32_
 #endif
     if (s->when_failed)
         out->flags |= ENGINE_FLAG_FALLBACK;
+    if (out->clamped != 0)
+        out->flags |= ENGINE_FLAG_CLAMPED | out->clamped;
     s->last = out->value;
     s->has_last = 1;
     return ENGINE_OK;
@@ -918,15 +930,22 @@ const char *engine_rating_name(int rating)
     return engine__ratings[rating].name;
 }
 
-int engine_bleed_index(const char *name)
+int engine_bleed_bit(const char *name)
 {
     int i;
     if (name == 0)
-        return -1;
+        return ENGINE_ERR_INPUT;
     for (i = 0; i < ENGINE_NUM_BLEEDS; i++)
         if (strcmp(engine__bleed_names[i], name) == 0)
             return i;
-    return -1;
+    return ENGINE_ERR_BLEED;
+}
+
+const char *engine_bleed_name(int bit)
+{
+    if (bit < 0 || bit >= ENGINE_NUM_BLEEDS)
+        return "";
+    return engine__bleed_names[bit];
 }
 
 const char *engine_gate_name(int gate)
@@ -936,20 +955,37 @@ const char *engine_gate_name(int gate)
     return engine__gates[gate].name;
 }
 
-int engine_target(int rating, const engine_conditions *c, engine_result *out)
+int engine_target_detail(int rating, const engine_conditions *c, engine_target_result *out)
 {
-    if (rating < 0 || rating >= ENGINE_NUM_RATINGS) {
-        memset(out, 0, sizeof *out);
+    engine_target_result res;
+    int rc;
+    if (c == 0 || out == 0)
+        return ENGINE_ERR_INPUT;
+    if (rating < 0 || rating >= ENGINE_NUM_RATINGS)
         return ENGINE_ERR_RATING;
-    }
-    return engine__target_r(&engine__ratings[rating], c, out);
+    rc = engine__target_r(&engine__ratings[rating], c, &res);
+    if (rc == ENGINE_OK)
+        *out = res;
+    return rc;
+}
+
+int engine_target(int rating, const engine_conditions *c, double *value)
+{
+    engine_target_result res;
+    int rc;
+    if (value == 0)
+        return ENGINE_ERR_INPUT;
+    rc = engine_target_detail(rating, c, &res);
+    if (rc == ENGINE_OK)
+        *value = res.value;
+    return rc;
 }
 
 void engine_lever_reset(engine_lever_state *s)
 {
-    memset(s, 0, sizeof *s);
+    if (s != 0)
+        memset(s, 0, sizeof *s);
 }
-
 /* The first geometry of lever id, as thrustmap's Model looks it up. */
 static int engine__geom_index(int lever)
 {
@@ -963,6 +999,8 @@ static int engine__geom_index(int lever)
 int engine_command_tla(int lever, engine_lever_state *s, double tla_deg, const engine_conditions *c, engine_command *out)
 {
     int gi = engine__geom_index(lever);
+    if (s == 0 || c == 0 || out == 0)
+        return ENGINE_ERR_INPUT;
     memset(out, 0, sizeof *out);
     if (gi < 0)
         return ENGINE_ERR_LEVER;
@@ -1009,9 +1047,9 @@ static double engine__raw_tla(const engine__geom *geo, double raw, uint32_t *cl)
 {
     int clamped = 0;
     double tla = engine__curve_at(&engine__grids[geo->forward], raw, &clamped);
-    *cl = clamped ? ENGINE_CLAMP_RAW : 0;
+    *cl = clamped ? ENGINE_CLAMPED_RAW : 0;
     if (raw < geo->raw_min || raw > geo->raw_max)
-        *cl |= ENGINE_CLAMP_DEVICE;
+        *cl |= ENGINE_CLAMPED_DEVICE;
     return tla;
 }
 
@@ -1026,10 +1064,13 @@ static int engine__calibrated(int lever)
 
 int engine_command_raw(int lever, engine_lever_state *s, double raw, const engine_conditions *c, engine_command *out)
 {
-    int gi = s->geom_plus1 - 1;
+    int gi;
     const engine__geom *geo;
     uint32_t cl = 0;
     double tla;
+    if (s == 0 || c == 0 || out == 0)
+        return ENGINE_ERR_INPUT;
+    gi = s->geom_plus1 - 1;
     memset(out, 0, sizeof *out);
     if (gi < 0 || engine__geoms[gi].id != lever) {
         gi = engine__geom_index(lever);
@@ -1048,7 +1089,7 @@ int engine_command_raw(int lever, engine_lever_state *s, double raw, const engin
     }
     tla = engine__raw_tla(geo, s->held, &cl);
     if (raw < geo->raw_min || raw > geo->raw_max)
-        cl |= ENGINE_CLAMP_DEVICE;
+        cl |= ENGINE_CLAMPED_DEVICE;
     return engine__command_at(s, gi, tla, cl, c, out);
 }
 
@@ -1058,7 +1099,7 @@ int engine_raw_to_tla(int lever, double raw, double *tla_deg, uint32_t *clamped)
     uint32_t cl = 0;
     if (i < 0)
         return ENGINE_ERR_LEVER;
-    if (isnan(raw))
+    if (isnan(raw) || tla_deg == 0)
         return ENGINE_ERR_INPUT;
     *tla_deg = engine__raw_tla(&engine__geoms[i], raw, &cl);
     if (clamped)
@@ -1073,7 +1114,7 @@ int engine_tla_to_raw(int lever, double tla_deg, double *raw, int *clamped)
     double r, lo, hi;
     if (i < 0)
         return ENGINE_ERR_LEVER;
-    if (isnan(tla_deg))
+    if (isnan(tla_deg) || raw == 0)
         return ENGINE_ERR_INPUT;
     geo = &engine__geoms[i];
     r = engine__curve_at(&engine__grids[geo->inverse], tla_deg, &cl);
