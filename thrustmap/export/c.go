@@ -1084,8 +1084,9 @@ func (g *cGen) gateCode() {
 		g.b.WriteString(g.codeStr(e.body))
 		g.code(";\n}\n")
 	}
-	g.code("\n/* name, TLA, rating (-1: none), target, when */\nstatic const engine__gate engine__gates[ENGINE_NUM_GATES] = {\n")
+	g.code("\n/* name, TLA, rating (-1: none), the most its own target can be, target, when */\nstatic const engine__gate engine__gates[ENGINE_NUM_GATES] = {\n")
 	for _, cg := range g.gates {
+		most := g.gateMost(cg)
 		target, when := "0", "0"
 		if cg.target != "" {
 			target = g.codeStr(cg.target)
@@ -1094,9 +1095,9 @@ func (g *cGen) gateCode() {
 			when = g.codeStr(cg.when)
 		}
 		if g.hasExpr {
-			g.code("    {%s, %s, %d, %s, %s},\n", cString(cg.g.Name), cNum(cg.g.TLADeg), cg.rating, target, when)
+			g.code("    {%s, %s, %d, %s, %s, %s},\n", cString(cg.g.Name), cNum(cg.g.TLADeg), cg.rating, cNum(most), target, when)
 		} else {
-			g.code("    {%s, %s, %d},\n", cString(cg.g.Name), cNum(cg.g.TLADeg), cg.rating)
+			g.code("    {%s, %s, %d, %s},\n", cString(cg.g.Name), cNum(cg.g.TLADeg), cg.rating, cNum(most))
 		}
 	}
 	g.code("};\n")
@@ -1119,4 +1120,45 @@ func (g *cGen) gateCode() {
 			strings.Join(caps, ", "), strings.Join(hyst, ", "))
 	}
 	g.code("};\n")
+}
+
+// gateMost bounds the own target gate cg can give, for the runtime's
+// shortcut in the raise chain (engine__effective): the largest value of its
+// rating's table plus every bleed correction that can add, cut to the
+// redline, with a margin far above rounding (a multilinear interpolation
+// stays within its points). +Inf where there is no such bound: a target
+// expression, or a monotone table, which is left out rather than relying
+// on the cubic's exact range.
+func (g *cGen) gateMost(cg cGate) float64 {
+	if cg.target != "" || cg.rating < 0 {
+		return math.Inf(1)
+	}
+	cr := g.rats[cg.rating]
+	most, ok := gridMost(g.grids[cr.table])
+	if !ok {
+		return math.Inf(1)
+	}
+	for _, c := range g.corrs[cr.corrFirst : cr.corrFirst+cr.nCo] {
+		add := c.delta
+		if c.grid >= 0 {
+			if add, ok = gridMost(g.grids[c.grid]); !ok {
+				return math.Inf(1)
+			}
+		}
+		most += max(add, 0)
+	}
+	most += 1e-9 * max(1, math.Abs(most))
+	if red, ok := g.p.Redline(); ok {
+		most = min(most, red)
+	}
+	return most
+}
+
+// gridMost is the largest value a linear table gives, and false for a
+// monotone one.
+func gridMost(c cGrid) (float64, bool) {
+	if c.method != grid.Linear {
+		return 0, false
+	}
+	return slices.Max(c.values), true
 }

@@ -20,23 +20,22 @@
  */
 #include "engine.h"
 
-/* What the profile uses (0 or 1 each), and its constants:
-   ENGINE__MONOTONE      a monotone (Fritsch-Butland) table
-   ENGINE__REDLINE       a redline, ENGINE__REDLINE_VALUE
-   ENGINE__ASSUMED       a rating with the assumed-temperature method, with
-                         ENGINE__TEMP_TOL, ENGINE__ASSUMED_MAX_C,
-                         ENGINE__MAX_REDUCTION_PCT
-   ENGINE__CORNER_ROWS   a flat-rating corner given per altitude row
-   ENGINE__CORRECTED     the reduction keeps corrected N1 (method corrected)
-   ENGINE__EXPR          gate expressions; ENGINE__EXPR_TARGET and
-                         ENGINE__EXPR_WHEN which kinds; ENGINE__EXPR_TLA one
-                         reads tla
-   ENGINE__USE_*         the expression functions the expressions call
-   ENGINE__IDLE          the idle gate's index (-1: none, no reverse range)
-   ENGINE__INTERLOCK     reverse in the air holds idle
-   ENGINE__ALWAYS        a bit for each gate that is always active
-   and the atmosphere's constants ENGINE__FT_TO_M, ENGINE__KELVIN,
-   ENGINE__MIN_ALT_FT, ENGINE__MAX_ALT_FT. */
+/* What the profile uses, each 0 or 1, and its constants:
+   - ENGINE__MONOTONE: a monotone (Fritsch-Butland) table.
+   - ENGINE__REDLINE: a redline, ENGINE__REDLINE_VALUE.
+   - ENGINE__ASSUMED: a rating with the assumed-temperature method, and its
+     ENGINE__TEMP_TOL, ENGINE__ASSUMED_MAX_C, ENGINE__MAX_REDUCTION_PCT.
+   - ENGINE__CORNER_ROWS: a flat-rating corner given per altitude row.
+   - ENGINE__CORRECTED: the reduction keeps corrected N1 (method corrected).
+   - ENGINE__EXPR: gate expressions; ENGINE__EXPR_TARGET and
+     ENGINE__EXPR_WHEN: of which kinds; ENGINE__EXPR_TLA: one reads tla.
+   - ENGINE__USE_*: the expression functions the expressions call.
+   - ENGINE__IDLE: the idle gate's index (-1: none, so no reverse range).
+   - ENGINE__INTERLOCK: reverse in the air holds idle.
+   - ENGINE__ALWAYS: a bit for each gate that is always active.
+   - ENGINE__BLEED_MASK: a bit for each bleed the profile declares.
+   - The atmosphere's ENGINE__FT_TO_M, ENGINE__KELVIN, ENGINE__MIN_ALT_FT
+     and ENGINE__MAX_ALT_FT. */
 #include "engine_features.h"
 
 typedef struct {
@@ -664,7 +663,8 @@ static int engine__truth(const engine_conditions *c, int (*fn)(engine__ctx *), d
 typedef struct {
     const char *name;
     double tla;
-    int rating; /* -1: none */
+    int rating;  /* -1: none */
+    double most; /* the largest own target it can give; HUGE_VAL: not bounded */
     double (*target)(engine__ctx *);
     int (*when)(engine__ctx *);
 } engine__gate;
@@ -674,6 +674,7 @@ typedef struct {
     const char *name;
     double tla;
     int rating;
+    double most; /* the largest own target it can give; HUGE_VAL: not bounded */
 } engine__gate;
 #endif /* ENGINE__EXPR */
 
@@ -705,7 +706,7 @@ static engine__gate_eval *engine__own(engine_lever_state *s, int i, double tla)
     if (s->own_known & bit)
         return e;
     s->own_known |= bit;
-    memset(e, 0, sizeof *e);
+    e->own_flags = e->own_clamp = 0; /* own and has_own are set below, eff and the rest by engine__effective */
 #if ENGINE__EXPR_TARGET
     if (g->target) {
         double v;
@@ -765,8 +766,36 @@ static int engine__active(engine_lever_state *s, int i, double tla)
 #endif
 }
 
+/* The most the effective target of the gates from gi's neighbour towards
+   base can be: the largest bound of those active. HUGE_VAL when a gate's
+   target is not bounded, or when knowing whether it is active would take
+   work (a when not yet evaluated at these conditions). */
+static double engine__chain_most(const engine_lever_state *s, int gi, int base, int step)
+{
+    double most = -HUGE_VAL;
+    int i;
+    for (i = gi + step; (step < 0 && i >= base) || (step > 0 && i <= base); i += step) {
+        if (((ENGINE__ALWAYS >> i) & 1u) == 0) {
+#if ENGINE__EXPR_WHEN
+            if (engine__gates[i].when != 0 && ((s->when_known >> i) & 1u) != 0) {
+                if (((s->when_true >> i) & 1u) == 0)
+                    continue; /* not active */
+            } else
+#endif
+                return HUGE_VAL;
+        }
+        if (engine__gates[i].most > most)
+            most = engine__gates[i].most;
+    }
+    (void)s;
+    return most;
+}
+
 /* Gate gi (active) with its effective target: its own, raised to the
-   effective target of the active gate next nearer idle. */
+   effective target of the active gate next nearer idle. When its own target
+   is at least what that gate's can be (engine__chain_most), nothing can
+   raise it and the gates nearer idle are not worked out: the same result
+   with fewer table look-ups. */
 static const engine__gate_eval *engine__effective(engine_lever_state *s, int gi, double tla)
 {
     engine__gate_eval *e = &s->gates[gi];
@@ -775,16 +804,19 @@ static const engine__gate_eval *engine__effective(engine_lever_state *s, int gi,
         return e;
     if (gi < base)
         step = 1;
-    for (i = gi + step; i >= 0 && ((step < 0 && i >= base) || (step > 0 && i <= base)); i += step) {
+    engine__own(s, gi, tla);
+    e->eff = e->own;
+    e->flags = e->own_flags;
+    e->clamp = e->own_clamp;
+    s->eff_known |= 1u << gi;
+    if (gi == base || e->own >= engine__chain_most(s, gi, base, step))
+        return e;
+    for (i = gi + step; (step < 0 && i >= base) || (step > 0 && i <= base); i += step) {
         if (((ENGINE__ALWAYS >> i) & 1u) != 0 || engine__active(s, i, tla)) {
             prev = i;
             break;
         }
     }
-    engine__own(s, gi, tla);
-    e->eff = e->own;
-    e->flags = e->own_flags;
-    e->clamp = e->own_clamp;
     if (prev >= 0) {
         const engine__gate_eval *p = engine__effective(s, prev, tla);
         if (p->eff > e->own) {
@@ -793,7 +825,6 @@ static const engine__gate_eval *engine__effective(engine_lever_state *s, int gi,
             e->clamp = p->clamp;
         }
     }
-    s->eff_known |= 1u << gi;
     return e;
 }
 
