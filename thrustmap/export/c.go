@@ -921,7 +921,7 @@ func (g *cGen) profileMacros() {
 	if lv := p.Lever(); lv.TLAMinDeg < lv.TLAMaxDeg {
 		stops = [2]float64{lv.TLAMinDeg, lv.TLAMaxDeg}
 	}
-	g.code("#define ENGINE_TLA_MIN_DEG %s /* the lever's end stops */\n#define ENGINE_TLA_MAX_DEG %s\n", cNum(stops[0]), cNum(stops[1]))
+	g.code("#define ENGINE_TLA_MIN_DEG %s /* the lever's end stops */\n#define ENGINE_TLA_MAX_DEG %s\n", cExprNum(stops[0]), cExprNum(stops[1]))
 }
 
 // features writes which parts of the runtime the profile needs, and its

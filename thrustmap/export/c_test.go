@@ -387,10 +387,13 @@ int main(int argc, char **argv)
         case 'G':
             printf("%s\n", engine_gate_name(atoi(t[1])));
             break;
-        case 'P':
+        case 'P': {
+            double span = ENGINE_TLA_MAX_DEG-ENGINE_TLA_MIN_DEG; /* the macros are whole expressions */
+            (void)span;
             printf("%s %s %d %d %d %d\n", ENGINE_PARAMETER, ENGINE_UNIT, ENGINE_NUM_RATINGS, ENGINE_NUM_GATES, ENGINE_NUM_BLEEDS,
                    ENGINE_API_VERSION);
             break;
+        }
         default:
             printf("?\n");
         }
