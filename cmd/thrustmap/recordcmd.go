@@ -150,22 +150,9 @@ func (f *liveFlags) record(cmd *cobra.Command, p *thrustmap.Profile, fn func(inp
 // loop reads d until a reason to stop, returning it (and the error that
 // ended the source, if it went away).
 func (f *liveFlags) loop(ctx context.Context, stdin io.Reader, d *input.Device, view *recordView, fn func(input.Sample)) (string, error) {
-	events := make(chan watchEvent)
 	quit := make(chan struct{})
 	defer close(quit)
-	go func() {
-		for {
-			s, err := d.Next()
-			select {
-			case events <- watchEvent{s, err}:
-			case <-quit:
-				return
-			}
-			if err != nil {
-				return
-			}
-		}
-	}()
+	events := readEvents(d, quit)
 	enter := make(chan struct{}, 1)
 	if stdin != nil {
 		go func() {

@@ -214,6 +214,26 @@ type watchEvent struct {
 	err error
 }
 
+// readEvents reads src on a goroutine of its own and sends each sample, and
+// finally the error that ends it, until quit is closed.
+func readEvents(src input.Reader, quit <-chan struct{}) <-chan watchEvent {
+	events := make(chan watchEvent)
+	go func() {
+		for {
+			s, err := src.Next()
+			select {
+			case events <- watchEvent{s, err}:
+			case <-quit:
+				return
+			}
+			if err != nil {
+				return
+			}
+		}
+	}()
+	return events
+}
+
 // run opens the device, shows its samples and reopens it when it goes away,
 // until ctx ends or --once is reached. Only the first open's failure is an
 // error; later failures mean the device is still away. A regular file is
@@ -254,21 +274,8 @@ func (w *watchConfig) run(ctx context.Context, m *thrustmap.Model, v *watchView)
 			src = paced
 		}
 
-		events := make(chan watchEvent)
 		quit := make(chan struct{})
-		go func() {
-			for {
-				s, err := src.Next()
-				select {
-				case events <- watchEvent{s, err}:
-				case <-quit:
-					return
-				}
-				if err != nil {
-					return
-				}
-			}
-		}()
+		events := readEvents(src, quit)
 		stop := func() {
 			close(quit)
 			if paced != nil {
