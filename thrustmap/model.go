@@ -234,14 +234,33 @@ type LeverState struct {
 	model      *Model
 	geom       *leverGeom
 	cond       Conditions
-	whenFailed bool   // a `when` failed to evaluate at these conditions
-	whenKnown  uint16 // `when` evaluated
-	whenTrue   uint16
-	ownKnown   uint16 // own target worked out
-	effKnown   uint16 // effective target worked out
-	gates      [MaxGates]gateEval
+	whenFailed bool // a `when` failed to evaluate at these conditions
+	gateCache
 
 	scratch *exprScratch
+}
+
+// gateCache is the gate values worked out at one set of conditions: bit i
+// of a mask is gate i.
+type gateCache struct {
+	whenKnown uint16 // `when` evaluated
+	whenTrue  uint16
+	ownKnown  uint16 // own target worked out
+	effKnown  uint16 // effective target worked out
+	gates     [MaxGates]gateEval
+}
+
+// merge adds to c what from worked out (at the same conditions) and c has
+// not.
+func (c *gateCache) merge(from *gateCache) {
+	for bits := (from.ownKnown &^ c.ownKnown) | (from.effKnown &^ c.effKnown); bits != 0; bits &= bits - 1 {
+		i := mathbits.TrailingZeros16(bits)
+		c.gates[i] = from.gates[i]
+	}
+	c.ownKnown |= from.ownKnown
+	c.effKnown |= from.effKnown
+	c.whenTrue = c.whenTrue&c.whenKnown | from.whenTrue&from.whenKnown&^c.whenKnown
+	c.whenKnown |= from.whenKnown
 }
 
 // gateEval is one gate's working values at the state's conditions.
@@ -308,10 +327,9 @@ func (m *Model) command(s *LeverState, lever int, raw float64, c Conditions, out
 // per goroutine and pass it to every lever of every frame: a frame at new
 // conditions starts it afresh.
 type Frame struct {
-	model                                   *Model
-	cond                                    Conditions
-	whenKnown, whenTrue, ownKnown, effKnown uint16
-	gates                                   [MaxGates]gateEval
+	model *Model
+	cond  Conditions
+	gateCache
 }
 
 // CommandFrame is Command for one of several levers commanded at the same
@@ -333,7 +351,7 @@ func (m *Model) CommandFrame(f *Frame, s *LeverState, lever int, raw float64, c 
 			f.model, f.cond = m, c
 			f.whenKnown, f.whenTrue, f.ownKnown, f.effKnown = 0, 0, 0, 0
 		}
-		f.save(s)
+		f.merge(&s.gateCache) // s worked them out at f's conditions, no `when` failing
 	}
 	return out, err
 }
@@ -347,30 +365,9 @@ func (s *LeverState) adopt(m *Model, f *Frame) {
 	if s.cond != f.cond {
 		s.invalidate(f.cond)
 	}
-	if s.whenFailed {
-		return
+	if !s.whenFailed {
+		s.merge(&f.gateCache)
 	}
-	for bits := (f.ownKnown &^ s.ownKnown) | (f.effKnown &^ s.effKnown); bits != 0; bits &= bits - 1 {
-		i := mathbits.TrailingZeros16(bits)
-		s.gates[i] = f.gates[i]
-	}
-	s.ownKnown |= f.ownKnown
-	s.effKnown |= f.effKnown
-	s.whenTrue = s.whenTrue&s.whenKnown | f.whenTrue&f.whenKnown&^s.whenKnown
-	s.whenKnown |= f.whenKnown
-}
-
-// save adds to f the gate targets s worked out that f does not hold; s
-// worked them out at f's conditions with no `when` failing.
-func (f *Frame) save(s *LeverState) {
-	for bits := (s.ownKnown &^ f.ownKnown) | (s.effKnown &^ f.effKnown); bits != 0; bits &= bits - 1 {
-		i := mathbits.TrailingZeros16(bits)
-		f.gates[i] = s.gates[i]
-	}
-	f.ownKnown |= s.ownKnown
-	f.effKnown |= s.effKnown
-	f.whenTrue = f.whenTrue&f.whenKnown | s.whenTrue&s.whenKnown&^f.whenKnown
-	f.whenKnown |= s.whenKnown
 }
 
 // CommandAtTLA is Command from a lever angle instead of raw counts, with the
