@@ -139,14 +139,11 @@ func (s *System) scanEvent(path string) EventDevice {
 	if s.Ioctl == nil {
 		return d
 	}
-	info, err := s.Ioctl.Evdev(f)
-	if err != nil {
-		if !errors.Is(err, ErrNotDevice) {
-			d.Err = err
-		}
-		return d
+	if info, err := askDevice(f, s.Ioctl.Evdev); err != nil {
+		d.Err = err
+	} else if info != nil {
+		d.EvdevInfo = *info
 	}
-	d.EvdevInfo = info
 	return d
 }
 
@@ -163,15 +160,26 @@ func (s *System) scanJoystick(path string) JoystickDevice {
 	if s.Ioctl == nil {
 		return d
 	}
-	info, err := s.Ioctl.Joystick(f)
-	if err != nil {
-		if !errors.Is(err, ErrNotDevice) {
-			d.Err = err
-		}
-		return d
+	if info, err := askDevice(f, s.Ioctl.Joystick); err != nil {
+		d.Err = err
+	} else if info != nil {
+		d.JoystickInfo = *info
 	}
-	d.JoystickInfo = info
 	return d
+}
+
+// askDevice asks the open file f what it is with ask (an ioctl): the
+// answer, nil with no error when f is not a device of that kind (a regular
+// file or FIFO standing in for one), or the error.
+func askDevice[T any](f *os.File, ask func(*os.File) (T, error)) (*T, error) {
+	info, err := ask(f)
+	switch {
+	case errors.Is(err, ErrNotDevice):
+		return nil, nil
+	case err != nil:
+		return nil, err
+	}
+	return &info, nil
 }
 
 // sysfsInput reads what /sys/class/input/NAME/device (the input device

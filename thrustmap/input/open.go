@@ -211,11 +211,7 @@ func (s *System) openEvdev(d *Device, want map[int]int) error {
 	}
 	var info *EvdevInfo
 	if s.Ioctl != nil {
-		i, err := s.Ioctl.Evdev(f)
-		switch {
-		case err == nil:
-			info = &i
-		case !errors.Is(err, ErrNotDevice):
+		if info, err = askDevice(f, s.Ioctl.Evdev); err != nil {
 			f.Close()
 			return err
 		}
@@ -266,11 +262,7 @@ func (s *System) openJoystick(d *Device, want map[int]int) error {
 	}
 	var info *JoystickInfo
 	if s.Ioctl != nil {
-		i, err := s.Ioctl.Joystick(f)
-		switch {
-		case err == nil:
-			info = &i
-		case !errors.Is(err, ErrNotDevice):
+		if info, err = askDevice(f, s.Ioctl.Joystick); err != nil {
 			f.Close()
 			return err
 		}
