@@ -207,13 +207,40 @@ func fastBuiltin(p *Profile, n *ast.BuiltinNode) (numFn, bool) {
 	}
 	switch {
 	case n.Name == "abs" && len(f) == 1:
-		return func(s *exprScratch) float64 { return math.Abs(f[0](s)) }, true
+		return func(s *exprScratch) float64 { return exprAbs(f[0](s)) }, true
 	case n.Name == "min" && len(f) == 2:
-		return func(s *exprScratch) float64 { return math.Min(f[0](s), f[1](s)) }, true
+		return func(s *exprScratch) float64 { return exprMin(f[0](s), f[1](s)) }, true
 	case n.Name == "max" && len(f) == 2:
-		return func(s *exprScratch) float64 { return math.Max(f[0](s), f[1](s)) }, true
+		return func(s *exprScratch) float64 { return exprMax(f[0](s), f[1](s)) }, true
 	}
 	return nil, false
+}
+
+// exprAbs, exprMin and exprMax are expr-lang's builtins abs, min and max on
+// two floats, comparison for comparison (its builtin/lib.go: abs negates
+// below zero; max keeps the first unless it is less than the second, min
+// unless it is greater), so a NaN or a signed zero comes out as on the VM:
+// max(x, NaN) is x, max(NaN, x) is NaN, abs(-0) is -0. Found by
+// FuzzFastExprMatchesVM; the generated C (export c) does the same.
+func exprAbs(x float64) float64 {
+	if x < 0 {
+		return -x
+	}
+	return x
+}
+
+func exprMin(a, b float64) float64 {
+	if a > b {
+		return b
+	}
+	return a
+}
+
+func exprMax(a, b float64) float64 {
+	if a < b {
+		return b
+	}
+	return a
 }
 
 // fastBool compiles a bool-valued node, or reports false.

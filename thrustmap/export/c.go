@@ -491,7 +491,8 @@ func (t *cExprTr) node(n ast.Node, want cValue) (code string, gives cValue, err 
 		}
 		switch {
 		case n.Name == "abs" && len(args) == 1:
-			return "fabs(" + args[0] + ")", cNumber, nil
+			t.g.uses["abs"] = true
+			return "engine__math_abs(" + args[0] + ")", cNumber, nil
 		case n.Name == "min" && len(args) == 2:
 			t.g.uses["min"] = true
 			return "engine__math_min(" + args[0] + ", " + args[1] + ")", cNumber, nil
@@ -951,7 +952,7 @@ func (g *cGen) features() {
 	flag("EXPR_TARGET", g.hasTarget)
 	flag("EXPR_WHEN", g.hasWhen)
 	flag("EXPR_TLA", g.anyTLA)
-	for _, f := range []string{"rating", "rating_at", "assumed", "isa_temp", "min", "max", "lerp"} {
+	for _, f := range []string{"rating", "rating_at", "assumed", "isa_temp", "min", "max", "abs", "lerp"} {
 		flag("USE_"+strings.ToUpper(f), g.uses[f])
 	}
 	g.code("#define ENGINE__IDLE (%d)\n", g.idle)

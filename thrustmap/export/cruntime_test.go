@@ -110,7 +110,7 @@ func TestCExprOneWalk(t *testing.T) {
 		{"bleed('wai')", cTruth, "(((x->cond.bleeds >> 1) & 1u) != 0)", ""},
 		{"bleed('no-such-bleed') or false", cTruth, "(0 || 0)", ""},
 		{"clamp(oat, 0, 1)", cNumber, "engine__math_max(0.0, engine__math_min(1.0, x->cond.oat_c))", ""},
-		{"abs(tla - 3)", cNumber, "fabs((x->tla - 3.0))", ""},
+		{"abs(tla - 3)", cNumber, "engine__math_abs((x->tla - 3.0))", ""},
 		{"rating('climb') + rating_at('derate', alt, -oat)", cNumber, "(engine__e_rating(x, 4) + engine__e_rating_at(x, 1, x->cond.alt_ft, (-x->cond.oat_c)))", ""},
 		// The other kind, refused at the node that gives it.
 		{"mach", cTruth, "", "mach (IdentifierNode) as true or false"},

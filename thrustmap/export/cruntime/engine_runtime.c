@@ -548,34 +548,29 @@ static double engine__fail(engine__ctx *x)
 #endif
 #if ENGINE__USE_MIN
 
-/* Go's math.Min. */
+/* The gate expressions' min: expr-lang's builtin on two numbers, which
+   keeps the first unless it is greater than the second. */
 static double engine__math_min(double x, double y)
 {
-    if (isinf(x) && x < 0)
-        return x;
-    if (isinf(y) && y < 0)
-        return y;
-    if (isnan(x) || isnan(y))
-        return NAN;
-    if (x == 0 && x == y)
-        return signbit(x) ? x : y;
-    return x < y ? x : y;
+    return x > y ? y : x;
 }
 #endif
 #if ENGINE__USE_MAX
 
-/* Go's math.Max. */
+/* The gate expressions' max: expr-lang's builtin on two numbers, which
+   keeps the first unless it is less than the second. */
 static double engine__math_max(double x, double y)
 {
-    if (isinf(x) && x > 0)
-        return x;
-    if (isinf(y) && y > 0)
-        return y;
-    if (isnan(x) || isnan(y))
-        return NAN;
-    if (x == 0 && x == y)
-        return signbit(x) ? y : x;
-    return x > y ? x : y;
+    return x < y ? y : x;
+}
+#endif
+#if ENGINE__USE_ABS
+
+/* The gate expressions' abs: expr-lang's builtin, which negates below zero
+   (so abs(-0) is -0). */
+static double engine__math_abs(double x)
+{
+    return x < 0 ? -x : x;
 }
 #endif
 #if ENGINE__USE_LERP
