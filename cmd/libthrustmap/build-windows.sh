@@ -76,17 +76,8 @@ for fn in $(sed -n 's/^    \(thrustmap_[a-z_0-9]*\)$/\1/p' "$out/lib/thrustmap.d
 done
 [ "$missing" -eq 0 ]
 
-cat > "$out/lib/pkgconfig/thrustmap.pc" <<EOF
-prefix=\${pcfiledir}/../..
-includedir=\${prefix}/include
-libdir=\${prefix}/lib
-
-Name: thrustmap
-Description: Lever calibration and rated engine targets for simulators (simulation only, not certified)
-Version: $abi
-Cflags: -I\${includedir}
-Libs: -L\${libdir} -lthrustmap
-EOF
+. "$pkg_dir/pkgconfig.sh"
+write_pkgconfig "$out" "$abi"
 
 echo "== link check: the C test with only the installed include and lib folders"
 "$cc" -Wall -Wextra -Werror -std=c11 -pthread -I "$out/include" -o "$work/thrustmap_test.exe" \

@@ -64,17 +64,8 @@ cp "$pkg_dir/thrustmap.h" "$out/include/thrustmap.h"
 rm -f "$out/lib/$soname" "$out/lib/libthrustmap.so"
 mv "$work/libthrustmap.so" "$out/lib/$soname"
 ln -s "$soname" "$out/lib/libthrustmap.so"
-cat > "$out/lib/pkgconfig/thrustmap.pc" <<EOF
-prefix=\${pcfiledir}/../..
-includedir=\${prefix}/include
-libdir=\${prefix}/lib
-
-Name: thrustmap
-Description: Lever calibration and rated engine targets for simulators (simulation only, not certified)
-Version: $abi
-Cflags: -I\${includedir}
-Libs: -L\${libdir} -lthrustmap
-EOF
+. "$pkg_dir/pkgconfig.sh"
+write_pkgconfig "$out" "$abi"
 
 echo "libthrustmap (interface version $abi) in $out:"
 (cd "$out" && ls -l include/thrustmap.h lib/libthrustmap.so lib/"$soname" lib/pkgconfig/thrustmap.pc)

@@ -128,44 +128,40 @@ func (s *System) openForScan(path string) (*os.File, error) {
 
 func (s *System) scanEvent(path string) EventDevice {
 	d := EventDevice{Path: path, EvdevInfo: s.sysfsInput(filepath.Base(path))}
-	f, err := s.openForScan(path)
-	if err != nil {
-		if !errors.Is(err, ErrNotDevice) {
-			d.Err = s.permissionError(path, false, err)
-		}
-		return d
-	}
-	defer f.Close()
-	if s.Ioctl == nil {
-		return d
-	}
-	if info, err := askDevice(f, s.Ioctl.Evdev); err != nil {
-		d.Err = err
-	} else if info != nil {
+	info, err := scanInfo(s, path, Ioctl.Evdev)
+	if info != nil {
 		d.EvdevInfo = *info
 	}
+	d.Err = err
 	return d
 }
 
 func (s *System) scanJoystick(path string) JoystickDevice {
 	d := JoystickDevice{Path: path, JoystickInfo: JoystickInfo{Name: s.sysfsInput(filepath.Base(path)).Name}}
+	info, err := scanInfo(s, path, Ioctl.Joystick)
+	if info != nil {
+		d.JoystickInfo = *info
+	}
+	d.Err = err
+	return d
+}
+
+// scanInfo opens path for a scan and asks it what it is with ask: the
+// answer; nil when path is not a device of that kind or no ioctls are at
+// hand; or the error to report (a permission error says how to mend it).
+func scanInfo[T any](s *System, path string, ask func(Ioctl, *os.File) (T, error)) (*T, error) {
 	f, err := s.openForScan(path)
 	if err != nil {
-		if !errors.Is(err, ErrNotDevice) {
-			d.Err = s.permissionError(path, false, err)
+		if errors.Is(err, ErrNotDevice) {
+			return nil, nil
 		}
-		return d
+		return nil, s.permissionError(path, false, err)
 	}
 	defer f.Close()
 	if s.Ioctl == nil {
-		return d
+		return nil, nil
 	}
-	if info, err := askDevice(f, s.Ioctl.Joystick); err != nil {
-		d.Err = err
-	} else if info != nil {
-		d.JoystickInfo = *info
-	}
-	return d
+	return askDevice(f, func(f *os.File) (T, error) { return ask(s.Ioctl, f) })
 }
 
 // askDevice asks the open file f what it is with ask (an ioctl): the
